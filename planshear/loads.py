@@ -1,0 +1,241 @@
+"""Load cases: seismic weight, center of mass, Fpx, wind edge loads, case expansion.
+
+Every ``[[load]]`` expands into one case per direction. Seismic loads (and edge loads
+with a non-zero ``eccentricity``) also get ``+ecc`` and ``-ecc`` cases for the rigid and
+semi-rigid assumptions: the center of mass is moved by ± eccentricity × the plan
+dimension perpendicular to the load (ASCE 7-16 §12.8.4.2). The flexible method has no
+eccentricity cases (that clause applies "where diaphragms are not flexible").
+
+A case's applied force is a :class:`ForceField` — area, line and point loads, all
+acting in the case direction — that every method integrates in its own way, plus the
+accidental torsional moment.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString, Polygon
+
+from .plan import Load, Plan
+
+__all__ = [
+    "SeismicWeight",
+    "ForceField",
+    "LoadCase",
+    "seismic_weight",
+    "fpx_force",
+    "windward_segments",
+    "expand_load_cases",
+]
+
+AXES = {"x": np.array([1.0, 0.0]), "y": np.array([0.0, 1.0])}
+
+
+@dataclass(frozen=True, eq=False)
+class ForceField:
+    """Distributed force in one direction.
+
+    ``areas``: (region, pressure N/m²); ``lines``: (start, end, N/m along the segment);
+    ``points``: (x, y, N). All act along the unit vector ``direction``.
+    """
+
+    direction: np.ndarray
+    areas: tuple[tuple[Polygon | shapely.MultiPolygon, float], ...]
+    lines: tuple[tuple[np.ndarray, np.ndarray, float], ...]
+    points: tuple[tuple[float, float, float], ...]
+
+    def total(self) -> float:
+        """Magnitude of the resultant force (N)."""
+        return sum(g.area * p for g, p in self.areas) + sum(
+            float(np.hypot(*(b - a))) * q for a, b, q in self.lines
+        ) + sum(p for _, _, p in self.points)
+
+    def first_moment(self) -> np.ndarray:
+        """Σ force × position (N·m), shape (2,)."""
+        moment = np.zeros(2)
+        for geometry, pressure in self.areas:
+            if geometry.area > 0:
+                moment += pressure * geometry.area * np.asarray(geometry.centroid.coords[0])
+        for a, b, q in self.lines:
+            moment += q * float(np.hypot(*(b - a))) * 0.5 * (a + b)
+        for x, y, p in self.points:
+            moment += p * np.array([x, y])
+        return moment
+
+    def centroid(self) -> np.ndarray:
+        """Point of application of the resultant (m)."""
+        return self.first_moment() / self.total()
+
+    def scaled(self, factor: float) -> ForceField:
+        return ForceField(
+            self.direction,
+            tuple((g, p * factor) for g, p in self.areas),
+            tuple((a, b, q * factor) for a, b, q in self.lines),
+            tuple((x, y, p * factor) for x, y, p in self.points),
+        )
+
+
+@dataclass(frozen=True)
+class SeismicWeight:
+    """Seismic weight of the level (N) and its center of mass (m)."""
+
+    total: float
+    center: np.ndarray
+    field: ForceField  # the weight itself as a field (direction unused)
+
+
+@dataclass(frozen=True, eq=False)
+class LoadCase:
+    """One analysis case, e.g. ``E+x+ecc``."""
+
+    name: str
+    load: str
+    kind: str
+    axis: str  # "x" or "y"
+    eccentricity_sign: int  # 0, +1 or -1
+    force: float  # N, total force in the +axis direction
+    field: ForceField  # distribution of that force
+    center: np.ndarray  # point of application of the resultant before eccentricity (m)
+    eccentricity: float  # m, accidental eccentricity magnitude (0 for none)
+    torsion: float  # N·m about z from the accidental eccentricity (counter-clockwise +)
+    collector_overstrength: float
+    assumptions: tuple[str, ...]  # which methods use the case
+
+    @property
+    def direction(self) -> np.ndarray:
+        return AXES[self.axis]
+
+
+def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
+    """Seismic weight (N) and center of mass (m) of ``load``: area weight over the
+    outline less openings (zone overrides replace it inside their zone) + line weights
+    + point weights."""
+    areas = []
+    remainder = plan.region
+    for zone in plan.zones:
+        if zone.name in load.zone_area_weight:
+            areas.append((zone.region, load.zone_area_weight[zone.name]))
+            remainder = remainder.difference(zone.polygon)
+    if load.area_weight:
+        areas.append((remainder, load.area_weight))
+    lines = []
+    for line_name, t0, t1, q in load.line_weights:
+        grid_line = plan.line(line_name)
+        lines.append((grid_line.point(t0), grid_line.point(t1), q))
+    field = ForceField(np.zeros(2), tuple(areas), tuple(lines), tuple(load.point_weights))
+    total = field.total()
+    return SeismicWeight(total, field.centroid() if total > 0 else np.zeros(2), field)
+
+
+def fpx_force(wpx: float, SDS: float, Ie: float, ratio: float) -> tuple[float, str]:
+    """Diaphragm force Fpx (N) from ASCE 7-16 Eq. 12.10-1, bounded by Eq. 12.10-2
+    (≥ 0.2·SDS·Ie·wpx) and Eq. 12.10-3 (≤ 0.4·SDS·Ie·wpx).
+
+    ``ratio`` is ΣFi/Σwi of Eq. 12.10-1 for the levels at and above this one; ``wpx`` in N.
+    Returns the force and which equation governs.
+    """
+    raw = ratio * wpx
+    lower = 0.2 * SDS * Ie * wpx
+    upper = 0.4 * SDS * Ie * wpx
+    if raw < lower:
+        return lower, "lower bound, ASCE 7-16 Eq. 12.10-2"
+    if raw > upper:
+        return upper, "upper bound, ASCE 7-16 Eq. 12.10-3"
+    return raw, "ASCE 7-16 Eq. 12.10-1"
+
+
+def windward_segments(plan: Plan, axis: str) -> list[tuple[np.ndarray, np.ndarray, float]]:
+    """Parts of the outline that face a wind blowing along +axis and are not shielded by
+    another part of the outline: (start, end, projected fraction) per piece.
+
+    The projected fraction is |projection of the piece on the axis normal| / length, so
+    that an intensity w per unit of plan width becomes w × fraction per unit of edge.
+    """
+    normal_axis = 1 - (0 if axis == "x" else 1)  # coordinate measured across the wind
+    outline = plan.outline
+    # Breakpoints across the wind: every outline vertex.
+    across = np.unique(np.round(outline[:, normal_axis], 12))
+    segments = []
+    ring = Polygon(outline)
+    lo_along = outline[:, 1 - normal_axis].min() - 1.0
+    hi_along = outline[:, 1 - normal_axis].max() + 1.0
+    for c0, c1 in zip(across[:-1], across[1:], strict=True):
+        mid = 0.5 * (c0 + c1)
+        ray = _axis_line(axis, mid, lo_along, hi_along)
+        hit = ray.intersection(ring)
+        if hit.is_empty:
+            continue
+        first = min(min(p[1 - normal_axis] for p in g.coords) for g in getattr(hit, "geoms", [hit]))
+        # The windward edge under this band: the outline edge crossing the ray at `first`.
+        for a, b in zip(outline, np.roll(outline, -1, axis=0), strict=True):
+            ca, cb = a[normal_axis], b[normal_axis]
+            if min(ca, cb) <= mid <= max(ca, cb) and ca != cb:
+                s = (mid - ca) / (cb - ca)
+                hit_along = a[1 - normal_axis] + s * (b[1 - normal_axis] - a[1 - normal_axis])
+                if abs(hit_along - first) <= 1e-9 * (hi_along - lo_along):
+                    # Clip the edge to the band [c0, c1].
+                    s0, s1 = (c0 - ca) / (cb - ca), (c1 - ca) / (cb - ca)
+                    p0, p1 = a + s0 * (b - a), a + s1 * (b - a)
+                    length = float(np.hypot(*(p1 - p0)))
+                    segments.append((p0, p1, (c1 - c0) / length))
+                    break
+    return segments
+
+
+def _axis_line(axis: str, across: float, lo: float, hi: float) -> LineString:
+    if axis == "x":
+        return LineString([(lo, across), (hi, across)])
+    return LineString([(across, lo), (across, hi)])
+
+
+def plan_dimension_across(plan: Plan, axis: str) -> float:
+    """Plan dimension perpendicular to a load along ``axis`` (m): outline extent."""
+    other = 1 if axis == "x" else 0
+    return float(np.ptp(plan.outline[:, other]))
+
+
+def expand_load_cases(plan: Plan) -> list[LoadCase]:
+    """All load cases of the plan, in file order: per load, per direction, then
+    the ±eccentricity cases (rigid and semi-rigid only)."""
+    cases: list[LoadCase] = []
+    for load in plan.loads:
+        if load.kind == "seismic":
+            weight = seismic_weight(plan, load)
+            if load.fpx is not None:
+                force, _ = fpx_force(weight.total, *load.fpx)
+            else:
+                force = float(load.total)
+            base_field = weight.field
+            base_total = weight.total
+            center = weight.center
+        for axis in load.directions:
+            direction = AXES[axis]
+            if load.kind == "seismic":
+                field = ForceField(direction, base_field.areas, base_field.lines, base_field.points).scaled(
+                    force / base_total
+                )
+            else:
+                lines = tuple((a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis))
+                field = ForceField(direction, (), lines, ())
+                force = field.total()
+                center = field.centroid()
+            eccentricity = load.eccentricity * plan_dimension_across(plan, axis)
+            cases.append(
+                LoadCase(f"{load.name}+{axis}", load.name, load.kind, axis, 0, force, field, center,
+                         0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"))
+            )
+            if eccentricity > 0:
+                for sign in (+1, -1):
+                    # Shift of the center of mass by sign·e perpendicular to the load:
+                    # for a load along x the shift is along y, for y along x.
+                    shift = sign * eccentricity * (np.array([0.0, 1.0]) if axis == "x" else np.array([1.0, 0.0]))
+                    torsion = float(shift[0] * direction[1] - shift[1] * direction[0]) * force
+                    cases.append(
+                        LoadCase(f"{load.name}+{axis}{'+' if sign > 0 else '-'}ecc", load.name, load.kind, axis,
+                                 sign, force, field, center, eccentricity, torsion,
+                                 load.collector_overstrength, ("rigid", "semirigid"))
+                    )
+    return cases

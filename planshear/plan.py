@@ -1,0 +1,809 @@
+"""The plan model: a TOML plan file read into typed, immutable objects.
+
+All lengths are metres, forces newtons, stiffness N/m, area weights N/m² (see
+:mod:`planshear.units`). Positions along a grid line (``from``/``to`` of walls and
+members) are measured as follows: on a line of ``grid.x`` (parallel to y) the position
+is the y coordinate; on a line of ``grid.y`` (parallel to x) it is the x coordinate; on
+a skewed line it is the distance from the line's ``start``.
+
+:func:`load_plan` reads and validates a file; every problem found is collected and
+raised together as one :class:`~planshear.errors.PlanError`.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString, Point, Polygon
+
+from .errors import PlanError, UnstablePlanError
+from .schema import schema_problems
+from .stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
+from .units import (
+    AREA_LOAD,
+    FORCE,
+    LENGTH,
+    LENGTH_UNITS,
+    LINE_LOAD,
+    PRESSURE,
+    STIFFNESS,
+    Dimension,
+    QuantityError,
+    parse_quantity,
+)
+
+__all__ = [
+    "Plan",
+    "Material",
+    "Zone",
+    "GridLine",
+    "Wall",
+    "Member",
+    "Load",
+    "MeshSettings",
+    "ClassificationFlags",
+    "load_plan",
+    "parse_plan",
+]
+
+MATERIAL_KINDS = ("wood-panel", "steel-deck", "concrete", "custom")
+LOAD_KINDS = ("seismic", "edge")
+MEMBER_ROLES = ("chord", "collector")
+
+#: Default ratio of the sheathing's axial rigidity Et to its shear rigidity Gt for the
+#: wood-panel and steel-deck presets. Kept small on purpose: the chords carry the
+#: diaphragm's flexure (as the SDPWS deflection equation assumes), while a non-zero
+#: axial rigidity keeps the membrane from having zero-energy stretching modes.
+DEFAULT_AXIAL_RATIO = 1.0
+#: Default cracked-section factor for concrete diaphragms (0.25 of gross for
+#: nonprestressed slabs; see VALIDATION.md 7.3, an ASCE-published effective-stiffness table).
+DEFAULT_CRACKED = 0.25
+#: Relative geometric tolerance (fraction of the plan size).
+GEOMETRY_TOLERANCE = 1e-9
+
+
+@dataclass(frozen=True, eq=False)
+class Material:
+    """Membrane rigidities per unit width (N/m) and how they were derived."""
+
+    kind: str
+    Et_x: float
+    Et_y: float
+    nu: float
+    Gt: float
+    description: str
+
+
+@dataclass(frozen=True, eq=False)
+class Zone:
+    """Part of the diaphragm with its own material (e.g. heavier boundary nailing)."""
+
+    name: str
+    polygon: Polygon  # as written, metres
+    region: Polygon | shapely.MultiPolygon  # polygon ∩ diaphragm
+    material: Material
+
+
+@dataclass(frozen=True, eq=False)
+class GridLine:
+    """A named line: point(t) = origin + t · direction, t in metres."""
+
+    name: str
+    family: str  # "x" (parallel to y), "y" (parallel to x) or "skew"
+    origin: np.ndarray
+    direction: np.ndarray  # unit vector
+    t_min: float  # extent of the line over the diaphragm outline
+    t_max: float
+
+    def point(self, t: float) -> np.ndarray:
+        return self.origin + t * self.direction
+
+    def segment(self, t0: float, t1: float) -> LineString:
+        return LineString([self.point(t0), self.point(t1)])
+
+    @property
+    def parallel_to(self) -> str | None:
+        """Axis the line runs along ("x" or "y"), None when skewed."""
+        return {"x": "y", "y": "x"}.get(self.family)
+
+
+@dataclass(frozen=True, eq=False)
+class Wall:
+    """A wall: a segment of a grid line that resists force along that line only."""
+
+    id: str
+    line: str
+    t_from: float
+    t_to: float
+    start: np.ndarray
+    end: np.ndarray
+    direction: np.ndarray  # unit vector along the wall
+    stiffness: WallStiffness
+
+    @property
+    def length(self) -> float:
+        return self.t_to - self.t_from
+
+    @property
+    def midpoint(self) -> np.ndarray:
+        return 0.5 * (self.start + self.end)
+
+    @property
+    def k(self) -> float:
+        return self.stiffness.value
+
+
+@dataclass(frozen=True, eq=False)
+class Member:
+    """A chord or collector bar along part of a grid line."""
+
+    role: str
+    line: str
+    t_from: float
+    t_to: float
+    EA: float  # N
+    effective_width: float  # m, membrane strip counted with the bar force
+
+
+@dataclass(frozen=True, eq=False)
+class Load:
+    """One ``[[load]]`` entry, in SI units (weights N/m², N/m, N; forces N)."""
+
+    name: str
+    kind: str  # "seismic" or "edge"
+    directions: tuple[str, ...]
+    area_weight: float = 0.0
+    zone_area_weight: dict[str, float] = field(default_factory=dict)
+    line_weights: tuple[tuple[str, float, float, float], ...] = ()  # (line, t0, t1, N/m)
+    point_weights: tuple[tuple[float, float, float], ...] = ()  # (x, y, N)
+    total: float | None = None
+    fpx: tuple[float, float, float] | None = None  # (SDS, Ie, ratio)
+    intensity: float = 0.0  # N/m, edge loads
+    eccentricity: float = 0.05
+    collector_overstrength: float = 1.0
+
+
+@dataclass(frozen=True)
+class MeshSettings:
+    size: float  # m
+    order: int
+    element: str  # "triangle" or "quad"
+
+
+@dataclass(frozen=True)
+class ClassificationFlags:
+    """The engineer's statement of which idealized code conditions apply."""
+
+    idealized_flexible: bool = False  # ASCE 7-16 §12.3.1.1 conditions met
+    idealized_rigid: bool = False  # ASCE 7-16 §12.3.1.2 conditions met
+    sensitivity: tuple[float, ...] = ()  # factors on diaphragm stiffness, e.g. (0.5, 2.0)
+
+
+@dataclass(frozen=True, eq=False)
+class Plan:
+    """A validated plan in SI units. ``region`` is the outline less the openings."""
+
+    name: str
+    source: str
+    length_unit: str
+    outline: np.ndarray  # (n, 2) counter-clockwise, m
+    openings: tuple[np.ndarray, ...]
+    region: Polygon
+    material: Material
+    chord_EA: float | None
+    zones: tuple[Zone, ...]
+    grid_lines: tuple[GridLine, ...]
+    walls: tuple[Wall, ...]
+    members: tuple[Member, ...]
+    loads: tuple[Load, ...]
+    mesh: MeshSettings
+    classification: ClassificationFlags
+
+    def line(self, name: str) -> GridLine:
+        for grid_line in self.grid_lines:
+            if grid_line.name == name:
+                return grid_line
+        raise KeyError(name)
+
+    @property
+    def length_scale(self) -> float:
+        """Metres per plan length unit."""
+        return LENGTH_UNITS[self.length_unit]
+
+
+# --------------------------------------------------------------------------------------
+# Loading
+# --------------------------------------------------------------------------------------
+
+
+def load_plan(path: str | Path) -> Plan:
+    """Read and validate a plan file. Raises :class:`PlanError` listing every problem."""
+    path = Path(path)
+    label = path.name
+    try:
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise PlanError([f"{path}: file not found; check the path"]) from None
+    except IsADirectoryError:
+        raise PlanError([f"{path}: is a folder; give the plan file (.toml) itself"]) from None
+    except UnicodeDecodeError:
+        raise PlanError([f"{label}: is not UTF-8 text; save the plan file as UTF-8"]) from None
+    except OSError as exc:
+        raise PlanError([f"{path}: cannot be read ({exc.strerror})"]) from None
+    return parse_plan(text, label)
+
+
+def parse_plan(text: str, label: str = "plan.toml") -> Plan:
+    """Validate the TOML ``text`` of a plan; ``label`` names the file in messages."""
+    try:
+        document = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise PlanError([f"{label}: TOML syntax error: {exc}; fix the line it names"]) from None
+    problems = schema_problems(document, label)
+    if problems:
+        raise PlanError(problems)
+    builder = _PlanBuilder(document, label)
+    return builder.build()
+
+
+class _PlanBuilder:
+    """Turns a schema-valid document into a Plan, collecting every problem."""
+
+    def __init__(self, document: dict, label: str):
+        self.doc = document
+        self.label = label
+        self.problems: list[str] = []
+        self.unit = "ft"
+        self.scale = 1.0
+
+    # -- helpers ------------------------------------------------------------------------
+
+    def problem(self, where: str, message: str) -> None:
+        self.problems.append(f"{self.label}: {where}: {message}")
+
+    def quantity(self, value: object, dimension: Dimension, where: str, positive: bool = True) -> float | None:
+        try:
+            magnitude = parse_quantity(value, dimension, self.unit)
+        except QuantityError as exc:
+            self.problem(where, str(exc))
+            return None
+        if positive and magnitude <= 0:
+            self.problem(where, f'must be positive, got "{value}"')
+            return None
+        if not positive and magnitude < 0:
+            self.problem(where, f'must not be negative, got "{value}"')
+            return None
+        return magnitude
+
+    def number(self, value: float, where: str, positive: bool = False, allow_zero: bool = True) -> float | None:
+        if not math.isfinite(value):
+            self.problem(where, f"must be a finite number, got {value}")
+            return None
+        if positive and (value < 0 or (value == 0 and not allow_zero)):
+            self.problem(where, f"must be {'positive' if not allow_zero else 'zero or positive'}, got {value}")
+            return None
+        return float(value)
+
+    def points(self, raw: list, where: str) -> np.ndarray | None:
+        array = np.asarray(raw, dtype=float)
+        if not np.all(np.isfinite(array)):
+            self.problem(where, "has a coordinate that is not a finite number; fix the point")
+            return None
+        return array * self.scale
+
+    def polygon(self, raw: list, where: str) -> Polygon | None:
+        array = self.points(raw, where)
+        if array is None:
+            return None
+        if len(array) > 3 and np.allclose(array[0], array[-1]):
+            array = array[:-1]
+        if len(array) < 3:
+            self.problem(where, "needs at least three distinct corners")
+            return None
+        ring = shapely.LinearRing(array)
+        if not ring.is_simple:
+            self.problem(where, "edges cross each other (not a simple polygon); list the corners in order around the boundary")
+            return None
+        polygon = Polygon(array)
+        if polygon.area <= (GEOMETRY_TOLERANCE * max(np.ptp(array, axis=0).max(), 1e-30)) ** 2 or polygon.area == 0:
+            self.problem(where, "has zero area; check the corner coordinates")
+            return None
+        if not polygon.is_valid:
+            self.problem(where, f"is not a valid polygon ({shapely.is_valid_reason(polygon)})")
+            return None
+        return shapely.geometry.polygon.orient(polygon, 1.0)
+
+    # -- sections ------------------------------------------------------------------------
+
+    def build(self) -> Plan:
+        doc = self.doc
+        plan_table = doc["plan"]
+        unit = plan_table["length_unit"]
+        if unit not in LENGTH_UNITS:
+            close = difflib.get_close_matches(unit, list(LENGTH_UNITS), n=1)
+            self.problem("plan.length_unit", f'"{unit}" is not supported; use "ft" or "m"' + (f' (did you mean "{close[0]}"?)' if close else ""))
+            raise PlanError(self.problems)
+        self.unit = unit
+        self.scale = LENGTH_UNITS[unit]
+        name = plan_table.get("name", Path(self.label).stem)
+
+        dia = doc["diaphragm"]
+        outline = self.polygon(dia["outline"], "diaphragm.outline")
+        if outline is None:
+            raise PlanError(self.problems)
+        size = max(np.ptp(np.asarray(outline.exterior.coords), axis=0))
+        self.tol = GEOMETRY_TOLERANCE * size * 1e3  # 1e-6 of the plan size
+
+        openings = []
+        for i, raw in enumerate(dia.get("openings", [])):
+            where = f"diaphragm.openings #{i + 1}"
+            opening = self.polygon(raw, where)
+            if opening is None:
+                continue
+            if not opening.within(outline) or opening.boundary.distance(outline.boundary) <= self.tol:
+                self.problem(where, "is not strictly inside the outline; an opening that reaches the edge is a notch: draw it as part of the outline instead")
+                continue
+            for j, other in enumerate(openings):
+                if opening.distance(other) <= self.tol:
+                    self.problem(where, f"overlaps or touches opening #{j + 1}; merge them into one opening")
+                    break
+            else:
+                openings.append(opening)
+        region = outline
+        for opening in openings:
+            region = region.difference(opening)
+        if isinstance(region, shapely.MultiPolygon) or region.geom_type != "Polygon":
+            pieces = len(getattr(region, "geoms", [region]))
+            self.problem("diaphragm.openings", f"the openings split the diaphragm into {pieces} separate pieces; analyze each piece as its own plan")
+            raise PlanError(self.problems)
+
+        material = self.material(dia["material"], "diaphragm.material")
+        chord_EA = None
+        if "chord_EA" in dia:
+            chord_EA = self.quantity(dia["chord_EA"], FORCE, "diaphragm.chord_EA")
+
+        zones = []
+        for i, raw in enumerate(dia.get("zone", [])):
+            zone_name = raw.get("name", f"zone {i + 1}")
+            where = f'diaphragm.zone "{zone_name}"'
+            polygon = self.polygon(raw["polygon"], where + ".polygon")
+            zone_material = self.material(raw["material"], where + ".material")
+            if any(z.name == zone_name for z in zones):
+                self.problem(where, "duplicate zone name; give each zone its own name")
+                continue
+            if polygon is None or zone_material is None:
+                continue
+            outside = polygon.difference(outline).area
+            if outside > self.tol * size:
+                self.problem(where, f"lies partly outside the outline ({outside / self.scale**2:.4g} {unit}² outside); keep zones within the diaphragm")
+                continue
+            overlapping = [z.name for z in zones if z.polygon.intersection(polygon).area > self.tol * size]
+            if overlapping:
+                self.problem(where, f'overlaps zone "{overlapping[0]}"; zones must not overlap')
+                continue
+            zones.append(Zone(zone_name, polygon, polygon.intersection(region), zone_material))
+
+        grid_lines = self.grid(doc["grid"], outline)
+        lines_by_name = {g.name: g for g in grid_lines}
+        walls = self.walls(doc["wall"], lines_by_name, region)
+        members = self.members(doc.get("member", []), lines_by_name, region)
+        loads = self.loads(doc.get("load", []), lines_by_name, zones, region)
+        mesh = self.mesh_settings(doc.get("mesh", {}), size)
+        classification = self.classification(doc.get("classification", {}))
+        if material is None:
+            pass  # already reported
+        if self.problems:
+            raise PlanError(self.problems)
+        outline_xy = np.asarray(outline.exterior.coords)[:-1]
+        plan = Plan(
+            name=name,
+            source=self.label,
+            length_unit=unit,
+            outline=outline_xy,
+            openings=tuple(np.asarray(o.exterior.coords)[:-1] for o in openings),
+            region=region,
+            material=material,
+            chord_EA=chord_EA,
+            zones=tuple(zones),
+            grid_lines=tuple(grid_lines),
+            walls=tuple(walls),
+            members=tuple(members),
+            loads=tuple(loads),
+            mesh=mesh,
+            classification=classification,
+        )
+        check_stability(plan)
+        return plan
+
+    def material(self, raw: dict, where: str) -> Material | None:
+        kind = raw["kind"]
+        allowed = {
+            "wood-panel": ({"Ga"}, {"axial_ratio"}),
+            "steel-deck": ({"G_prime"}, {"axial_ratio"}),
+            "concrete": ({"E", "thickness"}, {"nu", "cracked"}),
+            "custom": ({"Et_x", "Et_y", "Gt"}, {"nu"}),
+        }
+        if kind not in allowed:
+            close = difflib.get_close_matches(kind, MATERIAL_KINDS, n=1)
+            self.problem(where, f'unknown material kind "{kind}"; use one of {", ".join(MATERIAL_KINDS)}' + (f' (did you mean "{close[0]}"?)' if close else ""))
+            return None
+        required, optional = allowed[kind]
+        ok = True
+        for key in sorted(required - set(raw)):
+            self.problem(where, f'a {kind} material needs "{key}"; add it')
+            ok = False
+        for key in sorted(set(raw) - required - optional - {"kind"}):
+            self.problem(where, f'"{key}" does not apply to a {kind} material; remove it (fields: {", ".join(sorted(required | optional))})')
+            ok = False
+        if not ok:
+            return None
+        nu = float(raw.get("nu", 0.2 if kind == "concrete" else 0.0))
+        if not (-1.0 < nu < 0.5):
+            self.problem(where + ".nu", f"Poisson's ratio must lie between -1 and 0.5, got {nu}")
+            return None
+        if kind in ("wood-panel", "steel-deck"):
+            key = "Ga" if kind == "wood-panel" else "G_prime"
+            gt = self.quantity(raw[key], STIFFNESS, f"{where}.{key}")
+            ratio = float(raw.get("axial_ratio", DEFAULT_AXIAL_RATIO))
+            if not (math.isfinite(ratio) and ratio > 0):
+                self.problem(where + ".axial_ratio", f"must be a positive number, got {ratio}")
+                return None
+            if gt is None:
+                return None
+            source = "SDPWS apparent shear stiffness, G·t = 1000·Ga lb/in for Ga in kip/in" if kind == "wood-panel" else "AISI S310 / SDI shear stiffness G′ (G·t = G′)"
+            return Material(kind, ratio * gt, ratio * gt, 0.0, gt, f"{kind}: Gt = {key} ({source}); Et = {ratio:g}·Gt in both directions so that the chords carry the flexure")
+        if kind == "concrete":
+            E = self.quantity(raw["E"], PRESSURE, where + ".E")
+            t = self.quantity(raw["thickness"], LENGTH, where + ".thickness")
+            cracked = float(raw.get("cracked", DEFAULT_CRACKED))
+            if not (math.isfinite(cracked) and 0 < cracked <= 1):
+                self.problem(where + ".cracked", f"cracked-section factor must lie in (0, 1], got {cracked}")
+                return None
+            if E is None or t is None:
+                return None
+            Et = cracked * E * t
+            return Material(kind, Et, Et, nu, Et / (2 * (1 + nu)), f"concrete: Et = {cracked:g}·E·t, Gt = Et/(2(1+ν)), ν = {nu:g}")
+        values = [self.quantity(raw[k], STIFFNESS, f"{where}.{k}") for k in ("Et_x", "Et_y", "Gt")]
+        if any(v is None for v in values):
+            return None
+        Et_x, Et_y, Gt = values
+        if nu**2 * Et_y / Et_x >= 1.0:
+            self.problem(where + ".nu", "with these Et_x and Et_y the material is not positive definite; reduce nu")
+            return None
+        return Material(kind, Et_x, Et_y, nu, Gt, f"custom rigidities, ν = {nu:g}")
+
+    def grid(self, raw: dict, outline: Polygon) -> list[GridLine]:
+        minx, miny, maxx, maxy = outline.bounds
+        pad = 1.0 + (maxx - minx) + (maxy - miny)
+        lines: list[GridLine] = []
+        seen: set[str] = set()
+        specs = []
+        for family in ("x", "y"):
+            for line_name, value in raw.get(family, {}).items():
+                specs.append((line_name, family, value))
+        for entry in raw.get("line", []):
+            specs.append((entry["name"], "skew", entry))
+        if not specs:
+            self.problem("grid", "has no grid lines; add [grid] x = {...} and y = {...}")
+        for line_name, family, value in specs:
+            where = f'grid line "{line_name}"'
+            if line_name in seen:
+                self.problem(where, "the name is used twice; every grid line needs its own name")
+                continue
+            seen.add(line_name)
+            if family == "skew":
+                start = self.points(value["start"], where + ".start")
+                end = self.points(value["end"], where + ".end")
+                if start is None or end is None:
+                    continue
+                length = float(np.hypot(*(end - start)))
+                if length <= self.tol:
+                    self.problem(where, "start and end are the same point; give two different points")
+                    continue
+                origin, direction, t_lo, t_hi = start, (end - start) / length, 0.0, length
+            else:
+                if not math.isfinite(value):
+                    self.problem(where, f"position must be a finite number, got {value}")
+                    continue
+                c = value * self.scale
+                if family == "x":
+                    origin, direction, t_lo, t_hi = np.array([c, 0.0]), np.array([0.0, 1.0]), miny - pad, maxy + pad
+                else:
+                    origin, direction, t_lo, t_hi = np.array([0.0, c]), np.array([1.0, 0.0]), minx - pad, maxx + pad
+            probe = LineString([origin + t_lo * direction, origin + t_hi * direction])
+            hit = probe.intersection(outline)
+            if hit.is_empty or hit.length <= self.tol:
+                self.problem(where, "does not cross the diaphragm outline; check its position or remove it")
+                continue
+            coords = np.asarray([c for g in getattr(hit, "geoms", [hit]) for c in g.coords])
+            ts = (coords - origin) @ direction
+            lines.append(GridLine(line_name, family, origin, direction, float(ts.min()), float(ts.max())))
+        return lines
+
+    def _line_segment(self, entry: dict, where: str, lines: dict[str, GridLine], need_extent: bool = True):
+        line_name = entry["line"]
+        if line_name not in lines:
+            names = ", ".join(lines) or "none"
+            close = difflib.get_close_matches(line_name, list(lines), n=1)
+            hint = f' (did you mean "{close[0]}"?)' if close else ""
+            self.problem(where, f'line "{line_name}" is not a grid line (grid lines: {names}){hint}')
+            return None
+        line = lines[line_name]
+        if "from" in entry or "to" in entry or need_extent:
+            if "from" not in entry or "to" not in entry:
+                self.problem(where, 'give both "from" and "to" along the line')
+                return None
+            t0 = self.number(entry["from"], where + ".from")
+            t1 = self.number(entry["to"], where + ".to")
+            if t0 is None or t1 is None:
+                return None
+            t0, t1 = t0 * self.scale, t1 * self.scale
+            if t1 < t0:
+                t0, t1 = t1, t0
+            if t1 - t0 <= self.tol:
+                self.problem(where, f'has zero length (from = to = {entry["from"]}); give the two ends of the segment')
+                return None
+            if t0 < line.t_min - self.tol or t1 > line.t_max + self.tol:
+                lo, hi = line.t_min / self.scale, line.t_max / self.scale
+                self.problem(where, f'runs from {t0 / self.scale:g} to {t1 / self.scale:g} but line "{line_name}" crosses the diaphragm only from {lo:g} to {hi:g} {self.unit}; keep from/to within that range')
+                return None
+        else:
+            t0, t1 = line.t_min, line.t_max
+        return line, t0, t1
+
+    def walls(self, raw: list, lines: dict[str, GridLine], region: Polygon) -> list[Wall]:
+        walls: list[Wall] = []
+        ids: set[str] = set()
+        covered = region.buffer(self.tol)
+        for i, entry in enumerate(raw):
+            wall_id = entry["id"]
+            where = f'wall "{wall_id}"'
+            if wall_id in ids:
+                self.problem(where, "the id is used twice; give every wall its own id")
+                continue
+            ids.add(wall_id)
+            forms = [k for k in ("stiffness", "pier", "wood") if k in entry]
+            if len(forms) != 1:
+                self.problem(where, 'give exactly one of "stiffness", "pier" or "wood"' + (f" (found {', '.join(forms)})" if forms else ""))
+                continue
+            located = self._line_segment(entry, where, lines)
+            if located is None:
+                continue
+            line, t0, t1 = located
+            segment = line.segment(t0, t1)
+            if not covered.covers(segment):
+                outside = segment.difference(region.buffer(self.tol)).length / self.scale
+                self.problem(where, f"is not on the diaphragm ({outside:.4g} {self.unit} of it lies outside the outline or inside an opening); move it onto the diaphragm")
+                continue
+            stiffness = self.wall_stiffness(entry, forms[0], where, t1 - t0)
+            if stiffness is None:
+                continue
+            walls.append(Wall(wall_id, line.name, t0, t1, line.point(t0), line.point(t1), line.direction.copy(), stiffness))
+        return walls
+
+    def wall_stiffness(self, entry: dict, form: str, where: str, length: float) -> WallStiffness | None:
+        if form == "stiffness":
+            k = self.quantity(entry["stiffness"], STIFFNESS, where + ".stiffness")
+            return None if k is None else direct_stiffness(k)
+        if form == "pier":
+            pier = entry["pier"]
+            E = self.quantity(pier["E"], PRESSURE, where + ".pier.E")
+            t = self.quantity(pier["thickness"], LENGTH, where + ".pier.thickness")
+            h = self.quantity(pier["height"], LENGTH, where + ".pier.height")
+            G = self.quantity(pier["G"], PRESSURE, where + ".pier.G") if "G" in pier else None
+            top = pier.get("top", "free")
+            if top not in ("free", "fixed"):
+                self.problem(where + ".pier.top", f'must be "free" (cantilever) or "fixed", got "{top}"')
+                return None
+            if None in (E, t, h) or ("G" in pier and G is None):
+                return None
+            return pier_stiffness(E, t, h, length, top, G)
+        wood = entry["wood"]
+        Ga = self.quantity(wood["Ga"], STIFFNESS, where + ".wood.Ga")
+        h = self.quantity(wood["height"], LENGTH, where + ".wood.height")
+        EA = self.quantity(wood["chord_EA"], FORCE, where + ".wood.chord_EA")
+        k_hd = self.quantity(wood["holdown_k"], STIFFNESS, where + ".wood.holdown_k") if "holdown_k" in wood else None
+        if None in (Ga, h, EA) or ("holdown_k" in wood and k_hd is None):
+            return None
+        return wood_wall_stiffness(Ga, h, length, EA, k_hd)
+
+    def members(self, raw: list, lines: dict[str, GridLine], region: Polygon) -> list[Member]:
+        members: list[Member] = []
+        covered = region.buffer(self.tol)
+        for i, entry in enumerate(raw):
+            where = f'member #{i + 1} (line "{entry["line"]}")'
+            role = entry["role"]
+            if role not in MEMBER_ROLES:
+                self.problem(where, f'role "{role}" is unknown; use "chord" or "collector"')
+                continue
+            EA = self.quantity(entry["EA"], FORCE, where + ".EA")
+            located = self._line_segment(entry, where, lines, need_extent=False)
+            width = self.number(float(entry.get("effective_width", 0.0)), where + ".effective_width", positive=True)
+            if EA is None or located is None or width is None:
+                continue
+            line, t0, t1 = located
+            if "from" in entry and not covered.covers(line.segment(t0, t1)):
+                self.problem(where, "is not on the diaphragm; members must lie on the diaphragm (members may not span an opening)")
+                continue
+            members.append(Member(role, line.name, t0, t1, EA, width * self.scale))
+        return members
+
+    def loads(self, raw: list, lines: dict[str, GridLine], zones: list[Zone], region: Polygon) -> list[Load]:
+        loads: list[Load] = []
+        names: set[str] = set()
+        zone_names = {z.name for z in zones}
+        for entry in raw:
+            load_name = entry["name"]
+            where = f'load "{load_name}"'
+            if load_name in names:
+                self.problem(where, "the name is used twice; give every load its own name")
+                continue
+            names.add(load_name)
+            if not load_name or any(ch in load_name for ch in "+-/ "):
+                self.problem(where, 'names may not be empty or contain "+", "-", "/" or spaces (they are used in case names such as E+x)')
+                continue
+            kind = entry["kind"]
+            if kind not in LOAD_KINDS:
+                self.problem(where, f'kind "{kind}" is unknown; use "seismic" (weight-based body force) or "edge" (wind line load)')
+                continue
+            directions = tuple(entry["directions"])
+            bad = [d for d in directions if d not in ("x", "y")]
+            if bad or len(set(directions)) != len(directions):
+                self.problem(where + ".directions", f'must list "x" and/or "y" once each, got {list(directions)}')
+                continue
+            ecc = self.number(float(entry.get("eccentricity", 0.05 if kind == "seismic" else 0.0)), where + ".eccentricity", positive=True)
+            omega = self.number(float(entry.get("collector_overstrength", 1.0)), where + ".collector_overstrength")
+            if omega is not None and omega < 1.0:
+                self.problem(where + ".collector_overstrength", f"must be at least 1.0 (it multiplies collector forces), got {omega}")
+                omega = None
+            if ecc is not None and ecc > 0.5:
+                self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
+                ecc = None
+            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx"}
+            if kind == "edge":
+                misplaced = sorted(seismic_keys & set(entry))
+                if misplaced:
+                    self.problem(where, f'{", ".join(misplaced)} apply to seismic loads only; an edge load takes "intensity"')
+                    continue
+                if "intensity" not in entry:
+                    self.problem(where, 'an edge load needs "intensity" (force per length of plan edge facing the load), e.g. "0.3 kip/ft"')
+                    continue
+                intensity = self.quantity(entry["intensity"], LINE_LOAD, where + ".intensity")
+                if intensity is None or ecc is None or omega is None:
+                    continue
+                loads.append(Load(load_name, kind, directions, intensity=intensity, eccentricity=ecc, collector_overstrength=omega))
+                continue
+            if "intensity" in entry:
+                self.problem(where, '"intensity" applies to edge loads only; a seismic load takes weights')
+                continue
+            area_weight = self.quantity(entry["area_weight"], AREA_LOAD, where + ".area_weight", positive=False) if "area_weight" in entry else 0.0
+            zone_weights = {}
+            for zone_name, value in entry.get("zone_area_weight", {}).items():
+                if zone_name not in zone_names:
+                    self.problem(where + ".zone_area_weight", f'"{zone_name}" is not a zone (zones: {", ".join(sorted(zone_names)) or "none"})')
+                    continue
+                q = self.quantity(value, AREA_LOAD, f"{where}.zone_area_weight.{zone_name}", positive=False)
+                if q is not None:
+                    zone_weights[zone_name] = q
+            line_weights = []
+            for j, lw in enumerate(entry.get("line_weight", [])):
+                lw_where = f"{where}.line_weight #{j + 1}"
+                q = self.quantity(lw["weight"], LINE_LOAD, lw_where + ".weight", positive=False)
+                located = self._line_segment(lw, lw_where, lines, need_extent=False)
+                if q is None or located is None:
+                    continue
+                line, t0, t1 = located
+                line_weights.append((line.name, t0, t1, q))
+            point_weights = []
+            for j, pw in enumerate(entry.get("point_weight", [])):
+                pw_where = f"{where}.point_weight #{j + 1}"
+                q = self.quantity(pw["weight"], FORCE, pw_where + ".weight", positive=False)
+                at = self.points(pw["at"], pw_where + ".at")
+                if q is None or at is None:
+                    continue
+                if not region.buffer(self.tol).covers(Point(at)):
+                    self.problem(pw_where, "is not on the diaphragm (outside the outline or in an opening); move it")
+                    continue
+                point_weights.append((float(at[0]), float(at[1]), q))
+            has_total, has_fpx = "total" in entry, "fpx" in entry
+            if has_total == has_fpx:
+                self.problem(where, 'give exactly one of "total" (the diaphragm force) or "fpx" = { SDS, Ie, ratio } (ASCE 7-16 Eq. 12.10-1)')
+                continue
+            total = self.quantity(entry["total"], FORCE, where + ".total") if has_total else None
+            fpx = None
+            if has_fpx:
+                raw_fpx = entry["fpx"]
+                values = [self.number(float(raw_fpx[k]), f"{where}.fpx.{k}", positive=True, allow_zero=False) for k in ("SDS", "Ie", "ratio")]
+                if any(v is None for v in values):
+                    continue
+                fpx = tuple(values)
+            if area_weight is None or ecc is None or omega is None or (has_total and total is None):
+                continue
+            if area_weight == 0 and not zone_weights and not line_weights and not point_weights:
+                self.problem(where, 'has no seismic weight; give "area_weight" (e.g. "20 psf") and/or line and point weights')
+                continue
+            loads.append(
+                Load(load_name, kind, directions, area_weight=area_weight, zone_area_weight=zone_weights,
+                     line_weights=tuple(line_weights), point_weights=tuple(point_weights), total=total, fpx=fpx,
+                     eccentricity=ecc, collector_overstrength=omega)
+            )
+        if not raw:
+            self.problem("load", 'no [[load]] given; add a seismic or edge load')
+        return loads
+
+    def mesh_settings(self, raw: dict, size: float) -> MeshSettings:
+        element = raw.get("element", "triangle")
+        if element not in ("triangle", "quad"):
+            self.problem("mesh.element", f'must be "triangle" or "quad", got "{element}"')
+        order = raw.get("order", 2)
+        if order not in (1, 2):
+            self.problem("mesh.order", f"must be 1 or 2 (2, quadratic, is recommended), got {order}")
+        default_size = size / 40.0
+        target = raw.get("size", default_size / self.scale)
+        if not (math.isfinite(target) and target > 0):
+            self.problem("mesh.size", f"must be a positive number of {self.unit}, got {target}")
+            target = default_size / self.scale
+        return MeshSettings(float(target) * self.scale, int(order) if order in (1, 2) else 2, element)
+
+    def classification(self, raw: dict) -> ClassificationFlags:
+        factors = tuple(float(f) for f in raw.get("sensitivity", ()))
+        for f in factors:
+            if not (math.isfinite(f) and f > 0):
+                self.problem("classification.sensitivity", f"factors on diaphragm stiffness must be positive, got {f}")
+        return ClassificationFlags(bool(raw.get("idealized_flexible", False)), bool(raw.get("idealized_rigid", False)), factors)
+
+
+# --------------------------------------------------------------------------------------
+# Stability
+# --------------------------------------------------------------------------------------
+
+
+def rigid_stiffness_rows(walls: tuple[Wall, ...] | list[Wall], reference: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Kinematic rows a_i (n_walls, 3) and stiffnesses k_i (N/m) of the walls for the
+    rigid-body degrees of freedom (u, v, θ) about ``reference``: the displacement of
+    wall i along its line is a_i · (u, v, θ)."""
+    if not walls:
+        return np.zeros((0, 3)), np.zeros(0)
+    directions = np.array([w.direction for w in walls])
+    arms = np.array([w.midpoint for w in walls]) - reference
+    torsion = directions[:, 1] * arms[:, 0] - directions[:, 0] * arms[:, 1]
+    rows = np.column_stack([directions, torsion])
+    return rows, np.array([w.k for w in walls])
+
+
+def check_stability(plan: Plan) -> None:
+    """Raise :class:`UnstablePlanError` if the walls cannot hold the diaphragm in each
+    loaded direction and in rotation (checked on the rigid-body stiffness)."""
+    reference = np.asarray(plan.region.centroid.coords[0])
+    rows, k = rigid_stiffness_rows(plan.walls, reference)
+    size = max(np.ptp(plan.outline, axis=0))
+    # Non-dimensionalize the rotation column so the rank test is scale-free.
+    scaled = rows * np.array([1.0, 1.0, 1.0 / size]) * np.sqrt(k / k.max())[:, None]
+    problems = []
+    label = plan.source
+    needed = sorted({d for load in plan.loads for d in load.directions} | {"x", "y"})
+    for axis, col in (("x", 0), ("y", 1)):
+        if axis in needed and not np.any(np.abs(rows[:, col]) > 1e-9):
+            problems.append(
+                f"{label}: walls: no wall resists force in the {axis} direction; "
+                f"add a wall on a grid line parallel to {axis} (a line of grid.{'y' if axis == 'x' else 'x'})"
+            )
+    if not problems:
+        singular = np.linalg.svd(scaled, compute_uv=False)
+        if len(singular) < 3 or singular[2] <= 1e-9 * singular[0]:
+            if len(plan.walls) and np.allclose(np.abs(rows[:, :2]), np.abs(rows[0, :2])):
+                why = "all walls are parallel"
+            else:
+                why = "all wall lines meet at one point"
+            problems.append(
+                f"{label}: walls: {why}, so nothing resists rotation of the diaphragm (no torsional restraint); "
+                "add a wall on a line that does not pass through that point, or parallel walls on two separate lines"
+            )
+    if problems:
+        raise UnstablePlanError(problems)

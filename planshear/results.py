@@ -1,0 +1,151 @@
+"""Result types shared by every assumption (flexible, rigid, semi-rigid), and their
+conversion to the ``results.json`` contract in the plan's output units."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .units import OutputUnits
+
+__all__ = ["LineResult", "ChordResult", "CaseResult", "MethodResult", "method_to_json"]
+
+
+@dataclass(frozen=True, eq=False)
+class LineResult:
+    """Forces along one grid line for one case (SI units)."""
+
+    name: str
+    reaction: float  # N, sum of the wall forces on the line, along the line direction
+    delivered: float  # N, shear delivered by the diaphragm to the line
+    unit_shear_left: float  # N/m
+    unit_shear_right: float  # N/m
+    stations: np.ndarray  # m along the line (plan-file convention)
+    collector: np.ndarray  # N, tension positive
+    residual: float  # N
+
+    @property
+    def peak(self) -> float:
+        return float(self.collector[np.argmax(np.abs(self.collector))]) if len(self.collector) else 0.0
+
+    @property
+    def peak_position(self) -> float:
+        return float(self.stations[np.argmax(np.abs(self.collector))]) if len(self.collector) else 0.0
+
+
+@dataclass(frozen=True, eq=False)
+class ChordResult:
+    """Chord force diagram along an axis (N), tension on the +load edge when positive."""
+
+    name: str
+    stations: np.ndarray  # m
+    force: np.ndarray  # N
+
+    @property
+    def peak(self) -> float:
+        return float(self.force[np.argmax(np.abs(self.force))]) if len(self.force) else 0.0
+
+    @property
+    def peak_position(self) -> float:
+        return float(self.stations[np.argmax(np.abs(self.force))]) if len(self.force) else 0.0
+
+
+@dataclass(frozen=True, eq=False)
+class CaseResult:
+    """One assumption, one load case."""
+
+    case: str
+    axis: str
+    applied_force: float  # N along +axis
+    wall_forces: dict[str, float]  # N along each wall's direction
+    wall_drifts: dict[str, float]  # m, force / stiffness
+    lines: dict[str, LineResult]
+    chords: dict[str, ChordResult]
+    max_unit_shear: float  # N/m
+    max_unit_shear_at: np.ndarray  # m
+    max_displacement: float  # m
+    equilibrium_residual: float  # relative to the applied force
+    extra: dict[str, object] = field(default_factory=dict)
+
+
+@dataclass(frozen=True, eq=False)
+class MethodResult:
+    """All cases under one assumption."""
+
+    assumption: str
+    cases: dict[str, CaseResult]
+    notes: tuple[str, ...] = ()
+    extra: dict[str, object] = field(default_factory=dict)
+
+
+def _r(value: float, digits: int = 6) -> float:
+    """Round for the JSON file: results are engineering numbers, not bit patterns."""
+    if value == 0 or not np.isfinite(value):
+        return float(value)
+    return float(f"{value:.{digits + 3}g}")
+
+
+def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
+    lines = {}
+    for name, line in case.lines.items():
+        k = int(np.argmax(np.abs(line.collector))) if len(line.collector) else 0
+        lines[name] = {
+            "reaction": _r(units.force_out(line.reaction)),
+            "delivered_shear": _r(units.force_out(line.delivered)),
+            "unit_shear_left": _r(units.line_force_out(line.unit_shear_left)),
+            "unit_shear_right": _r(units.line_force_out(line.unit_shear_right)),
+            "collector_peak": _r(units.force_out(line.collector[k])) if len(line.collector) else 0.0,
+            "collector_peak_at": _r(units.length_out(line.stations[k])) if len(line.stations) else 0.0,
+            "collector": [
+                [_r(units.length_out(s)), _r(units.force_out(n))] for s, n in zip(line.stations, line.collector, strict=True)
+            ],
+            "residual": _r(units.force_out(line.residual)),
+        }
+    chords = {
+        name: {
+            "peak": _r(units.force_out(chord.peak)),
+            "peak_at": _r(units.length_out(chord.peak_position)),
+            "diagram": [
+                [_r(units.length_out(s)), _r(units.force_out(f))] for s, f in zip(chord.stations, chord.force, strict=True)
+            ],
+        }
+        for name, chord in case.chords.items()
+    }
+    out = {
+        "axis": case.axis,
+        "applied_force": _r(units.force_out(case.applied_force)),
+        "walls": {k: _r(units.force_out(v)) for k, v in case.wall_forces.items()},
+        "wall_drifts": {k: _r(units.displacement_out(v)) for k, v in case.wall_drifts.items()},
+        "lines": lines,
+        "chords": chords,
+        "max_unit_shear": _r(units.line_force_out(case.max_unit_shear)),
+        "max_unit_shear_at": [_r(units.length_out(c)) for c in case.max_unit_shear_at],
+        "max_displacement": _r(units.displacement_out(case.max_displacement)),
+        "equilibrium_residual": float(f"{case.equilibrium_residual:.3e}"),
+    }
+    for key, value in case.extra.items():
+        if key == "rigid_body_motion":
+            out[key] = {
+                "u": _r(units.displacement_out(value["u"])),
+                "v": _r(units.displacement_out(value["v"])),
+                "rotation_rad": _r(value["rotation"]),
+            }
+        elif key == "line_forces":
+            out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
+        else:
+            out[key] = value
+    return out
+
+
+def method_to_json(method: MethodResult, units: OutputUnits) -> dict:
+    out = {
+        "cases": {name: case_to_json(case, units) for name, case in method.cases.items()},
+        "notes": list(method.notes),
+    }
+    for key, value in method.extra.items():
+        if key == "center_of_rigidity":
+            out[key] = [_r(units.length_out(float(c))) for c in value]
+        else:
+            out[key] = value
+    return out

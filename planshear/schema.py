@@ -1,0 +1,291 @@
+"""Structure of the plan file (JSON Schema, checked with the jsonschema library).
+
+The schema checks keys, required fields and the types of plain values. Quantities with
+units are strings whose dimension is checked later by :mod:`planshear.units`, so the
+schema only marks them with ``QUANTITY``.
+"""
+
+from __future__ import annotations
+
+import difflib
+
+import jsonschema
+
+__all__ = ["PLAN_SCHEMA", "schema_problems"]
+
+QUANTITY: dict = {"description": "string with a unit"}
+NUMBER = {"type": "number"}
+POINT = {"type": "array", "items": NUMBER, "minItems": 2, "maxItems": 2}
+POLYGON = {"type": "array", "items": POINT, "minItems": 3}
+
+MATERIAL = {
+    "type": "object",
+    "required": ["kind"],
+    "properties": {
+        "kind": {"type": "string"},
+        "Ga": QUANTITY,
+        "G_prime": QUANTITY,
+        "E": QUANTITY,
+        "nu": NUMBER,
+        "thickness": QUANTITY,
+        "cracked": NUMBER,
+        "Et_x": QUANTITY,
+        "Et_y": QUANTITY,
+        "Gt": QUANTITY,
+        "axial_ratio": NUMBER,
+    },
+    "additionalProperties": False,
+}
+
+PLAN_SCHEMA: dict = {
+    "type": "object",
+    "required": ["plan", "diaphragm", "grid", "wall"],
+    "properties": {
+        "plan": {
+            "type": "object",
+            "required": ["length_unit"],
+            "properties": {
+                "name": {"type": "string"},
+                "length_unit": {"type": "string"},
+                "description": {"type": "string"},
+            },
+            "additionalProperties": False,
+        },
+        "diaphragm": {
+            "type": "object",
+            "required": ["outline", "material"],
+            "properties": {
+                "outline": POLYGON,
+                "openings": {"type": "array", "items": POLYGON},
+                "material": MATERIAL,
+                "chord_EA": QUANTITY,
+                "zone": {
+                    "type": "array",
+                    "items": {
+                        "type": "object",
+                        "required": ["polygon", "material"],
+                        "properties": {
+                            "name": {"type": "string"},
+                            "polygon": POLYGON,
+                            "material": MATERIAL,
+                        },
+                        "additionalProperties": False,
+                    },
+                },
+            },
+            "additionalProperties": False,
+        },
+        "grid": {
+            "type": "object",
+            "properties": {
+                "x": {"type": "object", "additionalProperties": NUMBER},
+                "y": {"type": "object", "additionalProperties": NUMBER},
+                "line": {
+                    "type": "array",
+                    "items": {
+                        "type": "object",
+                        "required": ["name", "start", "end"],
+                        "properties": {"name": {"type": "string"}, "start": POINT, "end": POINT},
+                        "additionalProperties": False,
+                    },
+                },
+            },
+            "additionalProperties": False,
+        },
+        "wall": {
+            "type": "array",
+            "minItems": 1,
+            "items": {
+                "type": "object",
+                "required": ["id", "line", "from", "to"],
+                "properties": {
+                    "id": {"type": "string"},
+                    "line": {"type": "string"},
+                    "from": NUMBER,
+                    "to": NUMBER,
+                    "stiffness": QUANTITY,
+                    "pier": {
+                        "type": "object",
+                        "required": ["E", "thickness", "height"],
+                        "properties": {
+                            "E": QUANTITY,
+                            "G": QUANTITY,
+                            "thickness": QUANTITY,
+                            "height": QUANTITY,
+                            "top": {"type": "string"},
+                        },
+                        "additionalProperties": False,
+                    },
+                    "wood": {
+                        "type": "object",
+                        "required": ["Ga", "height", "chord_EA"],
+                        "properties": {
+                            "Ga": QUANTITY,
+                            "height": QUANTITY,
+                            "chord_EA": QUANTITY,
+                            "holdown_k": QUANTITY,
+                        },
+                        "additionalProperties": False,
+                    },
+                },
+                "additionalProperties": False,
+            },
+        },
+        "member": {
+            "type": "array",
+            "items": {
+                "type": "object",
+                "required": ["role", "line", "EA"],
+                "properties": {
+                    "role": {"type": "string"},
+                    "line": {"type": "string"},
+                    "EA": QUANTITY,
+                    "from": NUMBER,
+                    "to": NUMBER,
+                    "effective_width": NUMBER,
+                },
+                "additionalProperties": False,
+            },
+        },
+        "load": {
+            "type": "array",
+            "items": {
+                "type": "object",
+                "required": ["name", "kind", "directions"],
+                "properties": {
+                    "name": {"type": "string"},
+                    "kind": {"type": "string"},
+                    "directions": {"type": "array", "items": {"type": "string"}, "minItems": 1},
+                    "area_weight": QUANTITY,
+                    "zone_area_weight": {"type": "object", "additionalProperties": QUANTITY},
+                    "line_weight": {
+                        "type": "array",
+                        "items": {
+                            "type": "object",
+                            "required": ["line", "weight"],
+                            "properties": {
+                                "line": {"type": "string"},
+                                "weight": QUANTITY,
+                                "from": NUMBER,
+                                "to": NUMBER,
+                            },
+                            "additionalProperties": False,
+                        },
+                    },
+                    "point_weight": {
+                        "type": "array",
+                        "items": {
+                            "type": "object",
+                            "required": ["at", "weight"],
+                            "properties": {"at": POINT, "weight": QUANTITY},
+                            "additionalProperties": False,
+                        },
+                    },
+                    "total": QUANTITY,
+                    "fpx": {
+                        "type": "object",
+                        "required": ["SDS", "Ie", "ratio"],
+                        "properties": {"SDS": NUMBER, "Ie": NUMBER, "ratio": NUMBER},
+                        "additionalProperties": False,
+                    },
+                    "intensity": QUANTITY,
+                    "eccentricity": NUMBER,
+                    "collector_overstrength": NUMBER,
+                },
+                "additionalProperties": False,
+            },
+        },
+        "mesh": {
+            "type": "object",
+            "properties": {
+                "size": NUMBER,
+                "order": {"type": "integer"},
+                "element": {"type": "string"},
+            },
+            "additionalProperties": False,
+        },
+        "classification": {
+            "type": "object",
+            "properties": {
+                "idealized_flexible": {"type": "boolean"},
+                "idealized_rigid": {"type": "boolean"},
+                "sensitivity": {"type": "array", "items": NUMBER},
+            },
+            "additionalProperties": False,
+        },
+    },
+    "additionalProperties": False,
+}
+
+_TYPE_WORDS = {
+    "number": "a number",
+    "integer": "a whole number",
+    "string": "a text in quotes",
+    "array": "a list [ ... ]",
+    "object": "a table { ... }",
+    "boolean": "true or false",
+}
+
+
+def _item_label(document: dict, path: list) -> str:
+    """Readable location such as 'wall "W4": stiffness' for a JSON path."""
+    parts: list[str] = []
+    node: object = document
+    i = 0
+    while i < len(path):
+        key = path[i]
+        child = node[key] if isinstance(node, (dict, list)) and _has(node, key) else None
+        if isinstance(key, str) and isinstance(child, list) and i + 1 < len(path) and isinstance(path[i + 1], int):
+            index = path[i + 1]
+            element = child[index] if index < len(child) else None
+            label = None
+            if isinstance(element, dict):
+                label = element.get("id") or element.get("name")
+            parts.append(f'{key} "{label}"' if isinstance(label, str) else f"{key} #{index + 1}")
+            node = element
+            i += 2
+            continue
+        parts.append(str(key) if not isinstance(key, int) else f"#{key + 1}")
+        node = child
+        i += 1
+    return ".".join(parts) if parts else "top level"
+
+
+def _has(node: object, key: object) -> bool:
+    if isinstance(node, dict):
+        return key in node
+    if isinstance(node, list) and isinstance(key, int):
+        return 0 <= key < len(node)
+    return False
+
+
+def schema_problems(document: dict, file_label: str) -> list[str]:
+    """Return one message per structural problem of the parsed TOML ``document``."""
+    validator = jsonschema.Draft202012Validator(PLAN_SCHEMA)
+    problems: list[str] = []
+    for error in sorted(validator.iter_errors(document), key=lambda e: list(map(str, e.absolute_path))):
+        where = _item_label(document, list(error.absolute_path))
+        if error.validator == "additionalProperties" and isinstance(error.instance, dict):
+            allowed = sorted(error.schema.get("properties", {}))
+            extra = [k for k in error.instance if k not in allowed]
+            for key in extra:
+                close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
+                hint = f'did you mean "{close[0]}"?' if close else f"allowed keys: {', '.join(allowed)}"
+                problems.append(f'{file_label}: {where}: unknown key "{key}" ({hint})')
+        elif error.validator == "required":
+            missing = [k for k in error.validator_value if k not in error.instance]
+            for key in missing:
+                problems.append(f'{file_label}: {where}: required key "{key}" is missing; add it')
+        elif error.validator == "type":
+            expected = error.validator_value
+            expected = [expected] if isinstance(expected, str) else expected
+            words = " or ".join(_TYPE_WORDS.get(t, t) for t in expected)
+            problems.append(f"{file_label}: {where}: expected {words}, got {error.instance!r}")
+        elif error.validator in ("minItems", "maxItems"):
+            problems.append(
+                f"{file_label}: {where}: has {len(error.instance)} entries; "
+                f"{'at least' if error.validator == 'minItems' else 'at most'} {error.validator_value} needed"
+            )
+        else:
+            problems.append(f"{file_label}: {where}: {error.message}")
+    return problems

@@ -1,0 +1,395 @@
+"""Diaphragm forces by the beam analogy, one code path for the flexible and rigid methods.
+
+For a load along axis d, the diaphragm is a beam spanning along the other axis s.
+Given the applied load and the forces that the walls exert on the diaphragm, this
+module gives:
+
+* the shear V(s) and moment M(s) diagrams (exact integrals of the real plan's load);
+* the unit shear V/ℓ(s) where ℓ(s) is the diaphragm length actually present at s
+  (openings and notches reduce it) and its maximum over the plan;
+* on every grid line parallel to d, the unit shear delivered from each side, and the
+  collector diagram N(t) as the running sum of (delivered shear + loads on the line −
+  wall reactions) along the line, tension positive, with its peak, position and the
+  residual at the far end;
+* the chord force M/depth along the span, depth being the outline's extent at s.
+
+Walls at an angle to the load contribute their component along d as reactions and their
+component along s as axial forces at their depth, which enter the moment about the
+section's mid-depth, so the moment closes at the end of the plan whenever the forces are
+in equilibrium (e.g. the torsional couples of the rigid method).
+
+Coordinates: s and t are the plan coordinates across and along the load (for a load
+along y: s = x, t = y; for a load along x: s = y, t = x). Units SI.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import shapely
+from shapely.geometry import LineString
+
+from planshear.loads import ForceField
+from planshear.plan import GridLine, Plan
+
+from .distribution import SpanLoad
+
+__all__ = ["WallReaction", "LineDiagram", "ChordDiagram", "BeamAnalogy", "beam_analogy", "load_along_span"]
+
+SAMPLES_PER_INTERVAL = 24
+
+
+@dataclass(frozen=True, eq=False)
+class WallReaction:
+    """Force (N, vector) that a wall takes from the diaphragm, with the wall's ends."""
+
+    wall_id: str
+    line: str
+    start: np.ndarray
+    end: np.ndarray
+    force: np.ndarray  # (2,) force on the wall; the diaphragm receives −force
+
+
+@dataclass(frozen=True, eq=False)
+class LineDiagram:
+    """Collector diagram along one grid line (t measured as in the plan file)."""
+
+    name: str
+    reaction: float  # N, sum of wall forces along the line direction
+    delivered: float  # N, shear delivered by the diaphragm from both sides
+    length_available: float  # m of diaphragm present along the line
+    unit_shear_left: float  # N/m, beam shear just before the line / length available
+    unit_shear_right: float  # N/m, just after
+    stations: np.ndarray  # (n,) t in m; repeated where a concentrated force makes a jump
+    force: np.ndarray  # (n,) axial force N, tension positive
+    residual: float  # N, force left at the far end (zero in exact equilibrium)
+
+    @property
+    def peak_index(self) -> int:
+        return int(np.argmax(np.abs(self.force))) if len(self.force) else 0
+
+    @property
+    def peak(self) -> float:
+        return float(self.force[self.peak_index]) if len(self.force) else 0.0
+
+    @property
+    def peak_position(self) -> float:
+        return float(self.stations[self.peak_index]) if len(self.stations) else 0.0
+
+
+@dataclass(frozen=True, eq=False)
+class ChordDiagram:
+    """Chord force along the span: T = M / depth (N), tension in the chord on the +d
+    edge for positive values (compression on the −d edge)."""
+
+    axis: str  # axis the chords run along
+    stations: np.ndarray  # s, m
+    force: np.ndarray  # N
+    depth: np.ndarray  # m
+
+    @property
+    def peak_index(self) -> int:
+        return int(np.argmax(np.abs(self.force))) if len(self.force) else 0
+
+
+@dataclass(frozen=True, eq=False)
+class BeamAnalogy:
+    """Everything the beam analogy gives for one load axis."""
+
+    axis: str  # load axis d
+    stations: np.ndarray  # s, m
+    shear: np.ndarray  # V(s), N
+    moment: np.ndarray  # M(s), N·m
+    length_available: np.ndarray  # ℓ(s), m
+    lines: dict[str, LineDiagram]
+    chord: ChordDiagram | None
+    max_unit_shear: float  # N/m (absolute)
+    max_unit_shear_at: np.ndarray  # (x, y) m
+    closure_shear: float  # V at the far end (N), zero in equilibrium
+    closure_moment: float  # M at the far end (N·m)
+    notes: list[str] = field(default_factory=list)
+
+
+def _axes(axis: str) -> tuple[int, int]:
+    """(index of s, index of t) in plan coordinates for a load along ``axis``."""
+    return (0, 1) if axis == "y" else (1, 0)
+
+
+def _cut_lines(plan: Plan, s_index: int, s_values: np.ndarray) -> np.ndarray:
+    lo = plan.outline[:, 1 - s_index].min() - 1.0
+    hi = plan.outline[:, 1 - s_index].max() + 1.0
+    coords = np.zeros((len(s_values), 2, 2))
+    coords[:, :, s_index] = s_values[:, None]
+    coords[:, 0, 1 - s_index] = lo
+    coords[:, 1, 1 - s_index] = hi
+    return shapely.linestrings(coords)
+
+
+def sections(plan: Plan, geometry, s_index: int, s_values: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Length of ``geometry`` cut at each s (m), and the t-range (min, max) of the cut."""
+    cuts = shapely.intersection(geometry, _cut_lines(plan, s_index, s_values))
+    lengths = shapely.length(cuts)
+    bounds = np.nan_to_num(shapely.bounds(cuts))  # empty cuts give NaN bounds
+    t_index = 1 - s_index
+    return lengths, bounds[:, t_index], bounds[:, t_index + 2]
+
+
+def _vertex_s(geometry, s_index: int) -> np.ndarray:
+    coords = shapely.get_coordinates(geometry)
+    return np.unique(coords[:, s_index])
+
+
+def load_along_span(plan: Plan, field_: ForceField, axis: str) -> SpanLoad:
+    """The applied force per unit of span s (exact for polygons: the cut length is
+    linear between vertices, so it is sampled at quarter points of each interval)."""
+    s_index, t_index = _axes(axis)
+    loads = []
+    for geometry, pressure in field_.areas:
+        if geometry.is_empty or pressure == 0:
+            continue
+        s_nodes = _vertex_s(geometry, s_index)
+        a, b = s_nodes[:-1], s_nodes[1:]
+        keep = b - a > 0
+        a, b = a[keep], b[keep]
+        q1, _, _ = sections(plan, geometry, s_index, a + 0.25 * (b - a))
+        q3, _, _ = sections(plan, geometry, s_index, a + 0.75 * (b - a))
+        w0 = q1 - 0.5 * (q3 - q1)
+        w1 = q3 + 0.5 * (q3 - q1)
+        loads.append(SpanLoad(np.column_stack([a, b, pressure * w0, pressure * w1]), np.zeros((0, 2))))
+    for start, end, q in field_.lines:
+        loads.append(_segment_load(start, end, q * float(np.hypot(*(end - start))), s_index, plan))
+    for x, y, p in field_.points:
+        loads.append(SpanLoad(np.zeros((0, 4)), np.array([[(x, y)[s_index], p]])))
+    return SpanLoad.concat(loads)
+
+
+def _segment_load(start: np.ndarray, end: np.ndarray, total: float, s_index: int, plan: Plan) -> SpanLoad:
+    """A force ``total`` spread uniformly along a segment, as a load per unit s."""
+    s0, s1 = sorted((start[s_index], end[s_index]))
+    size = float(np.ptp(plan.outline, axis=0).max())
+    if s1 - s0 <= 1e-9 * size:
+        return SpanLoad(np.zeros((0, 4)), np.array([[0.5 * (s0 + s1), total]]))
+    w = total / (s1 - s0)
+    return SpanLoad(np.array([[s0, s1, w, w]]), np.zeros((0, 2)))
+
+
+def beam_analogy(
+    plan: Plan,
+    axis: str,
+    field_: ForceField | None,
+    reactions: list[WallReaction],
+    with_chords: bool = True,
+) -> BeamAnalogy:
+    """Beam-analogy diagrams for forces along ``axis`` ("x" or "y").
+
+    ``field_`` is the applied load along +axis (None for the transverse pass of the
+    rigid method, which carries only wall forces). ``reactions`` are the wall forces.
+    """
+    s_index, t_index = _axes(axis)
+    e_t = np.eye(2)[t_index]
+    e_s = np.eye(2)[s_index]
+    size = float(np.ptp(plan.outline, axis=0).max())
+    tol = 1e-9 * size
+
+    applied = load_along_span(plan, field_, axis) if field_ is not None else SpanLoad.empty()
+    # Forces on the diaphragm from the walls: along t (reactions) and along s (axial).
+    t_parts, s_parts, st_parts = [], [], []
+    for r in reactions:
+        f_on_diaphragm = -r.force
+        ft = float(f_on_diaphragm @ e_t)
+        fs = float(f_on_diaphragm @ e_s)
+        if ft != 0.0:
+            t_parts.append(_segment_load(r.start, r.end, ft, s_index, plan))
+        if fs != 0.0:
+            t_mid = 0.5 * (r.start[t_index] + r.end[t_index])
+            s_parts.append(_segment_load(r.start, r.end, fs, s_index, plan))
+            st_parts.append(_segment_load(r.start, r.end, fs * t_mid, s_index, plan))
+    along = SpanLoad.concat([applied, *t_parts])
+    axial = SpanLoad.concat(s_parts)
+    axial_moment = SpanLoad.concat(st_parts)
+
+    s_min = plan.outline[:, s_index].min()
+    s_max = plan.outline[:, s_index].max()
+    line_s = {
+        g.name: float(g.origin[s_index])
+        for g in plan.grid_lines
+        if g.parallel_to == axis
+    }
+    knots = np.unique(np.concatenate([
+        [s_min, s_max], _vertex_s(plan.region, s_index), along.breakpoints(), axial.breakpoints(),
+        np.fromiter(line_s.values(), float, len(line_s)),
+    ]))
+    knots = knots[(knots >= s_min - tol) & (knots <= s_max + tol)]
+    fractions = np.linspace(0.0, 1.0, SAMPLES_PER_INTERVAL + 1)
+    stations = np.concatenate([
+        a + fractions * (b - a) for a, b in zip(knots[:-1], knots[1:], strict=True) if b - a > tol
+    ] + [knots[-1:]])
+    # Evaluate on both sides of every knot so that jumps show.
+    stations = np.unique(np.concatenate([stations, knots - 1e-7 * size, knots + 1e-7 * size]))
+    stations = stations[(stations >= s_min) & (stations <= s_max)]
+
+    force_t, moment_t = along.cumulative(stations)
+    force_s, _ = axial.cumulative(stations)
+    tmoment_s, _ = axial_moment.cumulative(stations)
+    length_available, _, _ = sections(plan, plan.region, s_index, stations)
+    _, t_lo, t_hi = sections(plan, shapely.Polygon(plan.outline), s_index, stations)
+    t_ref = 0.5 * (t_lo + t_hi)
+    depth = t_hi - t_lo
+    shear = -force_t
+    moment = -moment_t - tmoment_s + t_ref * force_s
+
+    with np.errstate(divide="ignore", invalid="ignore"):
+        unit = np.where(length_available > tol, np.abs(shear) / length_available, 0.0)
+    k = int(np.argmax(unit))
+    at = np.zeros(2)
+    at[s_index] = stations[k]
+    _, lo_k, hi_k = sections(plan, plan.region, s_index, stations[k : k + 1])
+    at[t_index] = 0.5 * (lo_k[0] + hi_k[0])
+
+    f_end, m_end = along.cumulative(np.array([s_max]), inclusive=True)
+    fs_end, _ = axial.cumulative(np.array([s_max]), inclusive=True)
+    ts_end, _ = axial_moment.cumulative(np.array([s_max]), inclusive=True)
+    closure_moment = float(-m_end[0] - ts_end[0] + t_ref[-1] * fs_end[0])
+
+    lines = {}
+    for grid_line in plan.grid_lines:
+        if grid_line.parallel_to != axis:
+            continue
+        lines[grid_line.name] = _line_diagram(plan, grid_line, axis, along, reactions, field_, size)
+
+    chord = None
+    if with_chords:
+        with np.errstate(divide="ignore", invalid="ignore"):
+            chord_force = np.where(depth > tol, moment / depth, 0.0)
+        chord = ChordDiagram("x" if axis == "y" else "y", stations, chord_force, depth)
+
+    return BeamAnalogy(
+        axis=axis,
+        stations=stations,
+        shear=shear,
+        moment=moment,
+        length_available=length_available,
+        lines=lines,
+        chord=chord,
+        max_unit_shear=float(unit[k]),
+        max_unit_shear_at=at,
+        closure_shear=float(-f_end[0]),
+        closure_moment=closure_moment,
+    )
+
+
+def _line_diagram(
+    plan: Plan,
+    grid_line: GridLine,
+    axis: str,
+    along: SpanLoad,
+    reactions: list[WallReaction],
+    field_: ForceField | None,
+    size: float,
+) -> LineDiagram:
+    """Collector diagram on a grid line parallel to the load axis."""
+    s_index, t_index = _axes(axis)
+    e_t = np.eye(2)[t_index]
+    s_line = float(grid_line.origin[s_index])
+    tol = 1e-9 * size
+    # Shear just before/after the line, without the forces that act on the line itself.
+    before, _ = along.cumulative(np.array([s_line]), inclusive=False)
+    after, _ = along.cumulative(np.array([s_line]), inclusive=True)
+    v_before, v_after = -before[0], -after[0]
+
+    segment = grid_line.segment(grid_line.t_min, grid_line.t_max)
+    present = segment.intersection(plan.region)
+    pieces = [g for g in getattr(present, "geoms", [present]) if isinstance(g, LineString) and g.length > tol]
+    available = float(sum(g.length for g in pieces))
+
+    # Distributed forces along t on the line (N per segment), and concentrated ones.
+    spans: list[tuple[float, float, float]] = []
+    points: list[tuple[float, float]] = []
+
+    def t_of(p) -> float:
+        return float((np.asarray(p) - grid_line.origin) @ grid_line.direction)
+
+    # Loads that lie on the line go along it with their own distribution.
+    on_line_load = 0.0
+    if field_ is not None:
+        for start, end, q in field_.lines:
+            if abs(start[s_index] - s_line) <= tol and abs(end[s_index] - s_line) <= tol:
+                total = q * float(np.hypot(*(end - start)))
+                spans.append((*sorted((t_of(start), t_of(end))), total))
+                on_line_load += total
+        for x, y, p in field_.points:
+            if abs((x, y)[s_index] - s_line) <= tol:
+                points.append((t_of((x, y)), p))
+                on_line_load += p
+    # Walls on the line.
+    reaction = 0.0
+    for r in reactions:
+        if r.line == grid_line.name:
+            f_on_line = -float(r.force @ e_t)
+            spans.append((*sorted((t_of(r.start), t_of(r.end))), f_on_line))
+            reaction += float(r.force @ grid_line.direction)
+    # Equilibrium of the strip along the line: loads on it + wall forces on it + what the
+    # diaphragm delivers from both sides = 0, and V jumps by −(loads + wall forces), so
+    # the diaphragm delivers V(after) − V(before), spread over the length present.
+    delivered_to_line = v_after - v_before
+    if available > tol:
+        for g in pieces:
+            coords = np.asarray(g.coords)
+            t0, t1 = sorted((t_of(coords[0]), t_of(coords[-1])))
+            spans.append((t0, t1, delivered_to_line * (t1 - t0) / available))
+    # Direction sign: forces are along e_t; the line's own direction may be ±e_t.
+    sign = float(grid_line.direction @ e_t)
+    stations, force = _running_axial_force(spans, points, grid_line.t_min, grid_line.t_max, sign)
+    residual = float(force[-1]) if len(force) else 0.0
+    return LineDiagram(
+        name=grid_line.name,
+        reaction=reaction,
+        delivered=delivered_to_line,
+        length_available=available,
+        unit_shear_left=v_before / available if available > tol else 0.0,
+        unit_shear_right=v_after / available if available > tol else 0.0,
+        stations=stations,
+        force=force,
+        residual=residual,
+    )
+
+
+def _running_axial_force(
+    spans: list[tuple[float, float, float]],
+    points: list[tuple[float, float]],
+    t_start: float,
+    t_end: float,
+    sign: float,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Axial force N(t) (tension +) in a member along t from t_start carrying uniform
+    forces ``spans`` (t0, t1, total force along +t) and concentrated ``points``:
+    N(t) = −(sum of forces applied between t_start and t), in the line's direction."""
+    knots = sorted({t_start, t_end, *(a for a, _, _ in spans), *(b for _, b, _ in spans), *(t for t, _ in points)})
+    knots = np.array([k for k in knots if t_start - 1e-12 <= k <= t_end + 1e-12])
+    spans_arr = np.array(spans, dtype=float).reshape(-1, 3)
+    a, b, total = spans_arr[:, 0], spans_arr[:, 1], spans_arr[:, 2]
+    length = b - a
+    density = np.divide(total, length, out=np.zeros_like(total), where=length > 0)
+    concentrated_spans = length <= 0
+
+    def applied_up_to(t: np.ndarray, inclusive: bool) -> np.ndarray:
+        covered = np.clip(t[:, None], a, b) - a
+        result = (density * covered).sum(axis=1)
+        if np.any(concentrated_spans):
+            hit = (a <= t[:, None]) if inclusive else (a < t[:, None])
+            result += np.where(hit & concentrated_spans, total, 0.0).sum(axis=1)
+        for tp, p in points:
+            result += np.where((tp <= t) if inclusive else (tp < t), p, 0.0)
+        return result
+
+    jump_at = {t for t, _ in points} | {float(x) for x in a[concentrated_spans]}
+    stations, forces = [], []
+    for k in knots:
+        if k in jump_at:
+            stations += [k, k]
+            forces += [applied_up_to(np.array([k]), False)[0], applied_up_to(np.array([k]), True)[0]]
+        else:
+            stations.append(k)
+            forces.append(applied_up_to(np.array([k]), True)[0])
+    return np.array(stations), -sign * np.array(forces)
