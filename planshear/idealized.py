@@ -118,7 +118,8 @@ def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         line_force[0] += force[0]  # cantilever beyond the first line
         line_force[-1] += total - force[-1]  # cantilever beyond the last line (incl. loads on it)
         forces = {w.id: 0.0 for w in plan.walls}
-        sign = {w.id: float(w.direction @ case.direction) for w in plan.walls}
+        axis_vector = np.eye(2)[0 if case.axis == "x" else 1]
+        sign = {w.id: float(w.direction @ axis_vector) for w in plan.walls}
         line_stiffness = {}
         for (name, _, walls), f in zip(supports, line_force, strict=True):
             k_line = sum(w.k for w in walls)
@@ -138,6 +139,11 @@ def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         "max_displacement is the largest drift of a line of resistance; the flexible idealization "
         "gives no diaphragm deflection of its own (see the semi-rigid results)",
     ]))
+
+
+def _cross(a: np.ndarray, b: np.ndarray) -> float:
+    """z-component of a × b for plane vectors."""
+    return float(a[0] * b[1] - a[1] * b[0])
 
 
 def center_of_rigidity(plan: Plan) -> np.ndarray:
@@ -188,7 +194,7 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         # Equilibrium: force in both directions and moment, relative to F and F·size.
         total = np.array([sum(forces[w.id] * w.direction[i] for w in plan.walls) for i in (0, 1)])
         moment = sum(
-            float(np.cross(w.midpoint - reference, forces[w.id] * w.direction)) for w in plan.walls
+            forces[w.id] * _cross(w.midpoint - reference, w.direction) for w in plan.walls
         )
         residual = max(
             float(np.max(np.abs(total - loads[:2, j]))) / case.force,

@@ -95,8 +95,9 @@ class LoadCase:
     load: str
     kind: str
     axis: str  # "x" or "y"
+    sign: int  # +1 or -1: the load acts along sign · axis
     eccentricity_sign: int  # 0, +1 or -1
-    force: float  # N, total force in the +axis direction
+    force: float  # N, total force along ``direction``
     field: ForceField  # distribution of that force
     center: np.ndarray  # point of application of the resultant before eccentricity (m)
     eccentricity: float  # m, accidental eccentricity magnitude (0 for none)
@@ -106,7 +107,7 @@ class LoadCase:
 
     @property
     def direction(self) -> np.ndarray:
-        return AXES[self.axis]
+        return self.sign * AXES[self.axis]
 
 
 def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
@@ -147,9 +148,9 @@ def fpx_force(wpx: float, SDS: float, Ie: float, ratio: float) -> tuple[float, s
     return raw, "ASCE 7-16 Eq. 12.10-1"
 
 
-def windward_segments(plan: Plan, axis: str) -> list[tuple[np.ndarray, np.ndarray, float]]:
-    """Parts of the outline that face a wind blowing along +axis and are not shielded by
-    another part of the outline: (start, end, projected fraction) per piece.
+def windward_segments(plan: Plan, axis: str, sign: int = 1) -> list[tuple[np.ndarray, np.ndarray, float]]:
+    """Parts of the outline that face a wind blowing along ``sign``·axis and are not
+    shielded by another part of the outline: (start, end, projected fraction) per piece.
 
     The projected fraction is |projection of the piece on the axis normal| / length, so
     that an intensity w per unit of plan width becomes w × fraction per unit of edge.
@@ -168,7 +169,8 @@ def windward_segments(plan: Plan, axis: str) -> list[tuple[np.ndarray, np.ndarra
         hit = ray.intersection(ring)
         if hit.is_empty:
             continue
-        first = min(min(p[1 - normal_axis] for p in g.coords) for g in getattr(hit, "geoms", [hit]))
+        along = [p[1 - normal_axis] for g in getattr(hit, "geoms", [hit]) for p in g.coords]
+        first = min(along) if sign > 0 else max(along)
         # The windward edge under this band: the outline edge crossing the ray at `first`.
         for a, b in zip(outline, np.roll(outline, -1, axis=0), strict=True):
             ca, cb = a[normal_axis], b[normal_axis]
@@ -211,31 +213,38 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
             base_field = weight.field
             base_total = weight.total
             center = weight.center
+        else:
+            base_field, base_total, force, center = None, 0.0, 0.0, None
         for axis in load.directions:
-            direction = AXES[axis]
             if load.kind == "seismic":
-                field = ForceField(direction, base_field.areas, base_field.lines, base_field.points).scaled(
-                    force / base_total
-                )
+                # A seismic field reverses exactly, so only +axis is analyzed.
+                fields = [(+1, ForceField(AXES[axis], base_field.areas, base_field.lines,
+                                          base_field.points).scaled(force / base_total), force, center)]
             else:
-                lines = tuple((a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis))
-                field = ForceField(direction, (), lines, ())
-                force = field.total()
-                center = field.centroid()
-            eccentricity = load.eccentricity * plan_dimension_across(plan, axis)
-            cases.append(
-                LoadCase(f"{load.name}+{axis}", load.name, load.kind, axis, 0, force, field, center,
-                         0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"))
-            )
-            if eccentricity > 0:
+                # Wind from either side loads different edges of an irregular plan.
+                fields = []
                 for sign in (+1, -1):
-                    # Shift of the center of mass by sign·e perpendicular to the load:
+                    lines = tuple((a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis, sign))
+                    edge_field = ForceField(sign * AXES[axis], (), lines, ())
+                    fields.append((sign, edge_field, edge_field.total(), edge_field.centroid()))
+            eccentricity = load.eccentricity * plan_dimension_across(plan, axis)
+            for sign, field, case_force, case_center in fields:
+                direction = sign * AXES[axis]
+                label = f"{load.name}{'+' if sign > 0 else '-'}{axis}"
+                cases.append(
+                    LoadCase(label, load.name, load.kind, axis, sign, 0, case_force, field, case_center,
+                             0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"))
+                )
+                if eccentricity <= 0:
+                    continue
+                for ecc_sign in (+1, -1):
+                    # Shift of the center of mass by ±e perpendicular to the load:
                     # for a load along x the shift is along y, for y along x.
-                    shift = sign * eccentricity * (np.array([0.0, 1.0]) if axis == "x" else np.array([1.0, 0.0]))
-                    torsion = float(shift[0] * direction[1] - shift[1] * direction[0]) * force
+                    shift = ecc_sign * eccentricity * (np.array([0.0, 1.0]) if axis == "x" else np.array([1.0, 0.0]))
+                    torsion = float(shift[0] * direction[1] - shift[1] * direction[0]) * case_force
                     cases.append(
-                        LoadCase(f"{load.name}+{axis}{'+' if sign > 0 else '-'}ecc", load.name, load.kind, axis,
-                                 sign, force, field, center, eccentricity, torsion,
+                        LoadCase(f"{label}{'+' if ecc_sign > 0 else '-'}ecc", load.name, load.kind, axis, sign,
+                                 ecc_sign, case_force, field, case_center, eccentricity, torsion,
                                  load.collector_overstrength, ("rigid", "semirigid"))
                     )
     return cases

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import os
 import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -389,6 +390,7 @@ class _PlanBuilder:
                 continue
             zones.append(Zone(zone_name, polygon, polygon.intersection(region), zone_material))
 
+        self.region_area = region.area
         grid_lines = self.grid(doc["grid"], outline)
         lines_by_name = {g.name: g for g in grid_lines}
         walls = self.walls(doc["wall"], lines_by_name, region)
@@ -561,7 +563,7 @@ class _PlanBuilder:
         walls: list[Wall] = []
         ids: set[str] = set()
         covered = region.buffer(self.tol)
-        for i, entry in enumerate(raw):
+        for entry in raw:
             wall_id = entry["id"]
             where = f'wall "{wall_id}"'
             if wall_id in ids:
@@ -749,7 +751,26 @@ class _PlanBuilder:
         if not (math.isfinite(target) and target > 0):
             self.problem("mesh.size", f"must be a positive number of {self.unit}, got {target}")
             target = default_size / self.scale
-        return MeshSettings(float(target) * self.scale, int(order) if order in (1, 2) else 2, element)
+        settings = MeshSettings(float(target) * self.scale, int(order) if order in (1, 2) else 2, element)
+        self.check_mesh_memory(settings)
+        return settings
+
+    def check_mesh_memory(self, settings: MeshSettings) -> None:
+        """Refuse a mesh that could not be solved in this machine's memory (estimated
+        before any meshing; see :func:`estimate_mesh`)."""
+        area = self.region_area
+        dofs, need = estimate_mesh(area, settings.size, settings.order)
+        available = physical_memory()
+        if need > MEMORY_FRACTION * available:
+            per_dof = need / dofs
+            dofs_allowed = MEMORY_FRACTION * available / per_dof
+            coarsest = settings.size * math.sqrt(dofs / dofs_allowed)
+            self.problem(
+                "mesh.size",
+                f"{settings.size / self.scale:g} {self.unit} would give about {dofs / 1e6:.3g} million degrees of "
+                f"freedom and need about {need / 2**30:.3g} GB of memory (this machine has {available / 2**30:.3g} GB); "
+                f"coarsen the mesh: use mesh.size of at least {coarsest / self.scale:.3g} {self.unit}",
+            )
 
     def classification(self, raw: dict) -> ClassificationFlags:
         factors = tuple(float(f) for f in raw.get("sensitivity", ()))
@@ -757,6 +778,31 @@ class _PlanBuilder:
             if not (math.isfinite(f) and f > 0):
                 self.problem("classification.sensitivity", f"factors on diaphragm stiffness must be positive, got {f}")
         return ClassificationFlags(bool(raw.get("idealized_flexible", False)), bool(raw.get("idealized_rigid", False)), factors)
+
+
+#: Bytes of memory per degree of freedom assumed for assembly + sparse factorization
+#: of a 2-D membrane model (a deliberately high figure; see benchmarks/).
+BYTES_PER_DOF = 4096
+#: Share of the machine's memory a run may plan to use.
+MEMORY_FRACTION = 0.8
+
+
+def estimate_mesh(area: float, size: float, order: int) -> tuple[float, float]:
+    """Rough degrees of freedom and memory (bytes) of a triangle mesh of element size
+    ``size`` (m) over ``area`` (m²): about 2.3·A/h² triangles, 2 displacement DOFs per
+    node, ≈ 2 nodes per quadratic triangle (½ for linear)."""
+    triangles = 2.31 * area / size**2
+    nodes = triangles * (2.0 if order == 2 else 0.5)
+    dofs = 2.0 * nodes
+    return dofs, dofs * BYTES_PER_DOF
+
+
+def physical_memory() -> float:
+    """Installed memory of this machine in bytes (24 GB assumed if it cannot be read)."""
+    try:
+        return float(os.sysconf("SC_PAGE_SIZE") * os.sysconf("SC_PHYS_PAGES"))
+    except (ValueError, OSError, AttributeError):
+        return 24.0 * 2**30
 
 
 # --------------------------------------------------------------------------------------
@@ -799,11 +845,12 @@ def check_stability(plan: Plan) -> None:
         if len(singular) < 3 or singular[2] <= 1e-9 * singular[0]:
             if len(plan.walls) and np.allclose(np.abs(rows[:, :2]), np.abs(rows[0, :2])):
                 why = "all walls are parallel"
+                fix = "add a wall in another direction"
             else:
-                why = "all wall lines meet at one point"
+                why = "the lines of all walls meet at one point"
+                fix = "add a wall on a line that does not pass through that point"
             problems.append(
-                f"{label}: walls: {why}, so nothing resists rotation of the diaphragm (no torsional restraint); "
-                "add a wall on a line that does not pass through that point, or parallel walls on two separate lines"
+                f"{label}: walls: {why}, so nothing resists rotation of the diaphragm (no torsional restraint); {fix}"
             )
     if problems:
         raise UnstablePlanError(problems)

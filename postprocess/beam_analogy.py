@@ -144,6 +144,7 @@ def load_along_span(plan: Plan, field_: ForceField, axis: str) -> SpanLoad:
     """The applied force per unit of span s (exact for polygons: the cut length is
     linear between vertices, so it is sampled at quarter points of each interval)."""
     s_index, t_index = _axes(axis)
+    sign = float(field_.direction @ np.eye(2)[t_index])  # ±1: the field acts along ±t
     loads = []
     for geometry, pressure in field_.areas:
         if geometry.is_empty or pressure == 0:
@@ -156,11 +157,11 @@ def load_along_span(plan: Plan, field_: ForceField, axis: str) -> SpanLoad:
         q3, _, _ = sections(plan, geometry, s_index, a + 0.75 * (b - a))
         w0 = q1 - 0.5 * (q3 - q1)
         w1 = q3 + 0.5 * (q3 - q1)
-        loads.append(SpanLoad(np.column_stack([a, b, pressure * w0, pressure * w1]), np.zeros((0, 2))))
+        loads.append(SpanLoad(np.column_stack([a, b, sign * pressure * w0, sign * pressure * w1]), np.zeros((0, 2))))
     for start, end, q in field_.lines:
-        loads.append(_segment_load(start, end, q * float(np.hypot(*(end - start))), s_index, plan))
+        loads.append(_segment_load(start, end, sign * q * float(np.hypot(*(end - start))), s_index, plan))
     for x, y, p in field_.points:
-        loads.append(SpanLoad(np.zeros((0, 4)), np.array([[(x, y)[s_index], p]])))
+        loads.append(SpanLoad(np.zeros((0, 4)), np.array([[(x, y)[s_index], sign * p]])))
     return SpanLoad.concat(loads)
 
 
@@ -311,17 +312,15 @@ def _line_diagram(
         return float((np.asarray(p) - grid_line.origin) @ grid_line.direction)
 
     # Loads that lie on the line go along it with their own distribution.
-    on_line_load = 0.0
     if field_ is not None:
+        field_sign = float(field_.direction @ e_t)
         for start, end, q in field_.lines:
             if abs(start[s_index] - s_line) <= tol and abs(end[s_index] - s_line) <= tol:
-                total = q * float(np.hypot(*(end - start)))
+                total = field_sign * q * float(np.hypot(*(end - start)))
                 spans.append((*sorted((t_of(start), t_of(end))), total))
-                on_line_load += total
         for x, y, p in field_.points:
             if abs((x, y)[s_index] - s_line) <= tol:
-                points.append((t_of((x, y)), p))
-                on_line_load += p
+                points.append((t_of((x, y)), field_sign * p))
     # Walls on the line.
     reaction = 0.0
     for r in reactions:

@@ -1,0 +1,1 @@
+"""Plan → finite-element mesh (gmsh). Not yet implemented; see the open issues."""

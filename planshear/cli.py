@@ -1,0 +1,139 @@
+"""Command line: ``planshear check | run | demo``.
+
+Exit codes: 0 success, 2 bad input (the plan file), 1 internal error. Only this module
+prints or exits; the library raises exceptions.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from importlib import resources
+from pathlib import Path
+
+from .errors import PlanError
+from .plan import load_plan, parse_plan
+from .run import CAUTION, Results, analyze, plan_summary
+
+EXIT_OK, EXIT_INTERNAL, EXIT_BAD_INPUT = 0, 1, 2
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="planshear",
+        description="Diaphragm analysis as flexible, rigid and semi-rigid. " + CAUTION,
+    )
+    sub = parser.add_subparsers(dest="command", required=True)
+    check = sub.add_parser("check", help="validate a plan file and print a short summary")
+    check.add_argument("plan", help="plan file (.toml)")
+    check.add_argument("--format", choices=("text", "json"), default="text")
+    run = sub.add_parser("run", help="analyze a plan and write the results folder")
+    run.add_argument("plan", help="plan file (.toml)")
+    run.add_argument("--out", default=None, help="output folder (default: <plan name>-results)")
+    run.add_argument("--format", choices=("text", "json"), default="text")
+    run.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    demo = sub.add_parser("demo", help="analyze the built-in demo plan")
+    demo.add_argument("--out", default="planshear-demo", help="output folder (default: planshear-demo)")
+    demo.add_argument("--format", choices=("text", "json"), default="text")
+    demo.add_argument("--quiet", action="store_true")
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        if args.command == "check":
+            plan = load_plan(args.plan)
+            from .loads import expand_load_cases
+
+            summary = plan_summary(plan, expand_load_cases(plan))
+            if args.format == "json":
+                print(json.dumps(summary, indent=1, ensure_ascii=False))
+            else:
+                _print_check(summary)
+            return EXIT_OK
+        if args.command == "demo":
+            text = resources.files("planshear").joinpath("data/demo.toml").read_text(encoding="utf-8")
+            plan = parse_plan(text, "demo.toml")
+            out = Path(args.out)
+        else:
+            plan = load_plan(args.plan)
+            out = Path(args.out) if args.out else Path(f"{Path(args.plan).stem}-results")
+        results = analyze(plan)
+        results.write(out)
+        if args.format == "json":
+            print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))
+        elif not args.quiet:
+            _print_results(results, out)
+        return EXIT_OK
+    except PlanError as exc:
+        for problem in exc.problems:
+            print(f"error: {problem}", file=sys.stderr)
+        if len(exc.problems) > 1:
+            print(f"{len(exc.problems)} problems found; nothing was analyzed.", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except KeyboardInterrupt:
+        print("interrupted; earlier results (if any) were left as they were", file=sys.stderr)
+        return EXIT_INTERNAL
+    except Exception as exc:  # the one place that turns an unexpected failure into a message
+        print(f"internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
+        print("This is a bug in planshear; please report it with the plan file.", file=sys.stderr)
+        return EXIT_INTERNAL
+
+
+def _print_check(summary: dict) -> None:
+    print(f"plan: {summary['name']} ({summary['file']}) — OK")
+    area_key = next(k for k in summary if k.startswith("area_"))
+    print(f"  diaphragm area: {summary[area_key]:.6g} {area_key[5:]}")
+    print(f"  walls along x: {', '.join(summary['walls_along_x']) or '-'}")
+    print(f"  walls along y: {', '.join(summary['walls_along_y']) or '-'}")
+    for name, load in summary["loads"].items():
+        line = f"  load {name} ({load['kind']}):"
+        if "seismic_weight" in load:
+            cm = ", ".join(f"{c:.4g}" for c in load["center_of_mass"])
+            line += f" weight {load['seismic_weight']:.5g}, center of mass ({cm}),"
+        line += " force " + ", ".join(f"{axis}: {f:.5g}" for axis, f in load["force"].items())
+        print(line)
+    print(f"  load cases: {', '.join(summary['cases'])}")
+
+
+def _short_json(results: Results) -> dict:
+    doc = results.to_json()
+    short = {"plan": doc["plan"]["name"], "units": doc["units"], "unavailable": doc["unavailable"], "walls": {}}
+    for assumption, method in doc["assumptions"].items():
+        for case_name, case in method["cases"].items():
+            for wall, force in case["walls"].items():
+                short["walls"].setdefault(wall, {})[f"{assumption}:{case_name}"] = force
+    return short
+
+
+def _print_results(results: Results, out: Path) -> None:
+    doc = results.to_json()
+    units = doc["units"]
+    print(f"plan: {doc['plan']['name']}")
+    for assumption, method in doc["assumptions"].items():
+        cases = list(method["cases"])
+        print(f"\n{assumption} — wall forces ({units['force']})")
+        walls = list(doc["plan"]["wall_stiffness"])
+        width = max(9, *(len(c) + 1 for c in cases))
+        print("  " + "wall".ljust(6) + "".join(c.rjust(width) for c in cases))
+        for wall in walls:
+            row = "".join(f"{method['cases'][c]['walls'][wall]:{width}.2f}" for c in cases)
+            print("  " + wall.ljust(6) + row)
+        print(f"  collector peaks ({units['force']}) at position ({units['position']}):")
+        names = sorted({n for c in cases for n in method["cases"][c]["lines"]})
+        for name in names:
+            cells = []
+            for c in cases:
+                line = method["cases"][c]["lines"].get(name)
+                cells.append(f"{line['collector_peak']:8.2f}@{line['collector_peak_at']:<6.4g}" if line else " " * 15)
+            print("  " + name.ljust(6) + " ".join(cells))
+    for assumption, reason in doc["unavailable"].items():
+        print(f"\n{assumption}: not run — {reason}")
+    print(f"\nresults written to {out}/results.json")
+    print(CAUTION)
+
+
+if __name__ == "__main__":
+    sys.exit(main())

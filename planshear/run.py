@@ -1,0 +1,132 @@
+"""The analysis pipeline: plan → load cases → methods → results, and safe writing."""
+
+from __future__ import annotations
+
+import json
+import os
+import shutil
+import tempfile
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from .errors import AnalysisError
+from .idealized import flexible_analysis, rigid_analysis
+from .loads import LoadCase, expand_load_cases, seismic_weight
+from .plan import Plan
+from .results import MethodResult, method_to_json
+from .units import OutputUnits
+
+__all__ = ["Results", "analyze", "plan_summary", "CAUTION"]
+
+CAUTION = (
+    "planshear results are an aid to design, not a design. They must be reviewed and "
+    "accepted by a licensed engineer, and the governing local building code and its "
+    "referenced standards take precedence over anything this program reports."
+)
+
+
+@dataclass(frozen=True, eq=False)
+class Results:
+    """Everything one run produced. ``methods`` maps assumption → result; methods that
+    could not be run are listed in ``unavailable`` with the reason."""
+
+    plan: Plan
+    cases: tuple[LoadCase, ...]
+    methods: dict[str, MethodResult]
+    unavailable: dict[str, str] = field(default_factory=dict)
+
+    @property
+    def units(self) -> OutputUnits:
+        return OutputUnits.for_plan(self.plan.length_unit)
+
+    def to_json(self) -> dict:
+        """The results.json document (output units, see the README)."""
+        units = self.units
+        return {
+            "planshear_results": 1,
+            "plan": plan_summary(self.plan, self.cases),
+            "units": {
+                "force": units.force,
+                "position": units.length,
+                "displacement": units.displacement,
+                "unit_shear": units.line_force,
+            },
+            "caution": CAUTION,
+            "assumptions": {name: method_to_json(m, units) for name, m in self.methods.items()},
+            "unavailable": dict(self.unavailable),
+        }
+
+    def write(self, folder: str | Path) -> Path:
+        """Write the output folder completely or not at all: everything goes into a
+        temporary folder next to ``folder`` that replaces it only once complete."""
+        folder = Path(folder)
+        parent = folder.resolve().parent
+        parent.mkdir(parents=True, exist_ok=True)
+        staging = Path(tempfile.mkdtemp(prefix=f".{folder.name}.partial-", dir=parent))
+        try:
+            text = json.dumps(self.to_json(), indent=1, ensure_ascii=False, allow_nan=False)
+            (staging / "results.json").write_text(text + "\n", encoding="utf-8")
+            _replace_folder(staging, folder)
+        except BaseException:
+            shutil.rmtree(staging, ignore_errors=True)
+            raise
+        return folder
+
+
+def _replace_folder(staging: Path, folder: Path) -> None:
+    if folder.exists():
+        if not folder.is_dir():
+            raise FileExistsError(f"{folder} exists and is not a folder; choose another --out")
+        old = folder.with_name(f".{folder.name}.old-{os.getpid()}")
+        os.replace(folder, old)
+        os.replace(staging, folder)
+        shutil.rmtree(old, ignore_errors=True)
+    else:
+        os.replace(staging, folder)
+
+
+def analyze(plan: Plan) -> Results:
+    """Run every available assumption on ``plan`` for all its load cases."""
+    cases = expand_load_cases(plan)
+    methods: dict[str, MethodResult] = {}
+    unavailable: dict[str, str] = {}
+    try:
+        methods["flexible"] = flexible_analysis(plan, cases)
+    except AnalysisError as exc:
+        unavailable["flexible"] = str(exc)
+    methods["rigid"] = rigid_analysis(plan, cases)
+    unavailable.setdefault("semirigid", "the semi-rigid finite-element model is not available in this version")
+    return Results(plan, tuple(cases), methods, unavailable)
+
+
+def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> dict:
+    """Short description of a plan in output units (used by `check` and results.json)."""
+    units = OutputUnits.for_plan(plan.length_unit)
+    area_unit = f"{units.length}²"
+    summary = {
+        "name": plan.name,
+        "file": plan.source,
+        "length_unit": plan.length_unit,
+        f"area_{area_unit}": round(units.length_out(units.length_out(plan.region.area)), 6),
+        "walls_along_x": [w.id for w in plan.walls if abs(w.direction[0]) > 1e-9],
+        "walls_along_y": [w.id for w in plan.walls if abs(w.direction[1]) > 1e-9],
+        "wall_stiffness": {
+            w.id: {"k": round(units.force_out(w.k) * units.displacement_factor, 6), "formula": w.stiffness.formula}
+            for w in plan.walls
+        },
+        "stiffness_unit": f"{units.force}/{units.displacement}",
+        "material": plan.material.description,
+        "loads": {},
+        "cases": [c.name for c in cases],
+    }
+    for load in plan.loads:
+        entry: dict = {"kind": load.kind, "directions": list(load.directions)}
+        if load.kind == "seismic":
+            weight = seismic_weight(plan, load)
+            entry["seismic_weight"] = round(units.force_out(weight.total), 6)
+            entry["center_of_mass"] = [round(units.length_out(c), 6) for c in weight.center]
+        forces = {c.axis: c.force for c in cases if c.load == load.name}
+        entry["force"] = {axis: round(units.force_out(f), 6) for axis, f in forces.items()}
+        entry["collector_overstrength"] = load.collector_overstrength
+        summary["loads"][load.name] = entry
+    return summary

@@ -1,0 +1,88 @@
+"""Command line and results file contract."""
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from planshear import analyze, load_plan
+from planshear.cli import main
+
+EXAMPLE = Path(__file__).parents[1] / "examples" / "alder_library_roof.toml"
+
+
+def test_demo_writes_results_per_contract(tmp_path, capsys):
+    out = tmp_path / "demo"
+    assert main(["demo", "--out", str(out)]) == 0
+    text = capsys.readouterr().out
+    assert "licensed engineer" in text
+    doc = json.loads((out / "results.json").read_text())
+    assert doc["units"] == {"force": "kip", "position": "ft", "displacement": "in", "unit_shear": "kip/ft"}
+    assert "licensed engineer" in doc["caution"]
+    for assumption in ("flexible", "rigid"):
+        cases = doc["assumptions"][assumption]["cases"]
+        for case in cases.values():
+            for key in ("walls", "lines", "chords", "max_unit_shear", "max_displacement", "equilibrium_residual"):
+                assert key in case
+            for line in case["lines"].values():
+                assert {"reaction", "collector_peak", "collector_peak_at", "collector"} <= set(line)
+    assert "E+x+ecc" in doc["assumptions"]["rigid"]["cases"]
+    assert "E+x+ecc" not in doc["assumptions"]["flexible"]["cases"]
+    assert "semirigid" in doc["unavailable"]
+
+
+def test_run_is_repeatable_and_leaves_input_alone(tmp_path):
+    plan_copy = tmp_path / "plan.toml"
+    plan_copy.write_bytes(EXAMPLE.read_bytes())
+    before = plan_copy.read_bytes()
+    assert main(["run", str(plan_copy), "--out", str(tmp_path / "a"), "--quiet"]) == 0
+    assert main(["run", str(plan_copy), "--out", str(tmp_path / "b"), "--quiet"]) == 0
+    assert (tmp_path / "a" / "results.json").read_bytes() == (tmp_path / "b" / "results.json").read_bytes()
+    assert plan_copy.read_bytes() == before
+    leftovers = [p.name for p in tmp_path.iterdir() if p.name.startswith(".")]
+    assert leftovers == []
+
+
+def test_failed_write_keeps_previous_results(tmp_path, monkeypatch):
+    results = analyze(load_plan(EXAMPLE))
+    out = tmp_path / "out"
+    results.write(out)
+    previous = (out / "results.json").read_bytes()
+
+    def broken(*args, **kwargs):
+        raise OSError("disk full")
+
+    monkeypatch.setattr("planshear.run.json.dumps", broken)
+    with pytest.raises(OSError):
+        results.write(out)
+    assert (out / "results.json").read_bytes() == previous
+    assert [p.name for p in tmp_path.iterdir()] == ["out"]
+
+
+def test_json_summary_format(tmp_path, capsys):
+    assert main(["run", str(EXAMPLE), "--out", str(tmp_path / "r"), "--format", "json"]) == 0
+    summary = json.loads(capsys.readouterr().out)
+    assert "W1" in summary["walls"]
+
+
+def test_check_prints_summary(capsys):
+    assert main(["check", str(EXAMPLE)]) == 0
+    out = capsys.readouterr().out
+    assert "center of mass" in out and "E+y-ecc" in out
+
+
+def test_console_script_exit_code_for_bad_input(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text("[plan\n")
+    proc = subprocess.run([sys.executable, "-m", "planshear.cli", "check", str(bad)], capture_output=True, text=True)
+    assert proc.returncode == 2
+    assert "Traceback" not in proc.stderr and "bad.toml" in proc.stderr
+
+
+def test_public_api_resolves():
+    import planshear
+
+    for name in planshear.__all__:
+        assert hasattr(planshear, name)
