@@ -76,7 +76,10 @@ def test_check_prints_summary(capsys):
 def test_console_script_exit_code_for_bad_input(tmp_path):
     bad = tmp_path / "bad.toml"
     bad.write_text("[plan\n")
-    proc = subprocess.run([sys.executable, "-m", "planshear.cli", "check", str(bad)], capture_output=True, text=True)
+    # Run from tmp_path so the source folder planshear/ does not shadow the installed package.
+    proc = subprocess.run(
+        [sys.executable, "-m", "planshear.cli", "check", str(bad)], capture_output=True, text=True, cwd=tmp_path
+    )
     assert proc.returncode == 2
     assert "Traceback" not in proc.stderr and "bad.toml" in proc.stderr
 
