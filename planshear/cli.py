@@ -12,7 +12,7 @@ import sys
 from importlib import resources
 from pathlib import Path
 
-from .errors import PlanError
+from .errors import AnalysisError, PlanError
 from .plan import load_plan, parse_plan
 from .run import CAUTION, Results, analyze, plan_summary
 
@@ -72,6 +72,9 @@ def main(argv: list[str] | None = None) -> int:
             print(f"error: {problem}", file=sys.stderr)
         if len(exc.problems) > 1:
             print(f"{len(exc.problems)} problems found; nothing was analyzed.", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except AnalysisError as exc:
+        print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     except KeyboardInterrupt:
         print("interrupted; earlier results (if any) were left as they were", file=sys.stderr)

@@ -11,7 +11,13 @@ import numpy as np
 from .errors import AnalysisError
 from .loads import LoadCase
 from .plan import Plan, Wall, rigid_stiffness_rows
-from .postprocess.beam_analogy import BeamAnalogy, WallReaction, beam_analogy, load_along_span
+from .postprocess.beam_analogy import (
+    BeamAnalogy,
+    WallReaction,
+    beam_analogy,
+    edge_chords,
+    load_along_span,
+)
 from .results import CaseResult, ChordResult, LineResult, MethodResult
 
 __all__ = ["flexible_analysis", "rigid_analysis", "lines_of_resistance", "center_of_rigidity"]
@@ -55,7 +61,8 @@ def _case_from_analogy(
             )
     chords = {}
     if main.chord is not None:
-        chords[f"along {main.chord.axis}"] = ChordResult(f"along {main.chord.axis}", main.chord.stations, main.chord.force)
+        for name, (stations, force) in edge_chords(plan, main.chord).items():
+            chords[name] = ChordResult(name, stations, force)
     max_v, max_at = main.max_unit_shear, main.max_unit_shear_at
     if transverse is not None and transverse.max_unit_shear > max_v:
         max_v, max_at = transverse.max_unit_shear, transverse.max_unit_shear_at

@@ -61,7 +61,7 @@ MEMBER_ROLES = ("chord", "collector")
 #: wood-panel and steel-deck presets. Kept small on purpose: the chords carry the
 #: diaphragm's flexure (as the SDPWS deflection equation assumes), while a non-zero
 #: axial rigidity keeps the membrane from having zero-energy stretching modes.
-DEFAULT_AXIAL_RATIO = 1.0
+DEFAULT_AXIAL_RATIO = 0.1
 #: Default cracked-section factor for concrete diaphragms (0.25 of gross for
 #: nonprestressed slabs; see VALIDATION.md 7.3, an ASCE-published effective-stiffness table).
 DEFAULT_CRACKED = 0.25

@@ -24,6 +24,7 @@ class LineResult:
     stations: np.ndarray  # m along the line (plan-file convention)
     collector: np.ndarray  # N, tension positive
     residual: float  # N
+    side_shear: np.ndarray | None = None  # (k, 3): t, delivered per length from left, from right
 
     @property
     def peak(self) -> float:
@@ -102,6 +103,11 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             ],
             "residual": _r(units.force_out(line.residual)),
         }
+        if line.side_shear is not None:
+            lines[name]["delivered_shear_diagram"] = [
+                [_r(units.length_out(t)), _r(units.line_force_out(a)), _r(units.line_force_out(b))]
+                for t, a, b in line.side_shear
+            ]
     chords = {
         name: {
             "peak": _r(units.force_out(chord.peak)),
@@ -131,6 +137,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
                 "v": _r(units.displacement_out(value["v"])),
                 "rotation_rad": _r(value["rotation"]),
             }
+        elif key == "solver_residual":
+            out[key] = value
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:

@@ -12,8 +12,10 @@ from pathlib import Path
 from .errors import AnalysisError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
+from .mesh_export import write_mesh_files
 from .plan import Plan
 from .results import MethodResult, method_to_json
+from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
 
 __all__ = ["Results", "analyze", "plan_summary", "CAUTION"]
@@ -34,6 +36,7 @@ class Results:
     cases: tuple[LoadCase, ...]
     methods: dict[str, MethodResult]
     unavailable: dict[str, str] = field(default_factory=dict)
+    semirigid: SemirigidRun | None = None
 
     @property
     def units(self) -> OutputUnits:
@@ -63,9 +66,14 @@ class Results:
         parent = folder.resolve().parent
         parent.mkdir(parents=True, exist_ok=True)
         staging = Path(tempfile.mkdtemp(prefix=f".{folder.name}.partial-", dir=parent))
+        umask = os.umask(0)
+        os.umask(umask)
+        staging.chmod(0o777 & ~umask)  # mkdtemp makes it private; the result folder is not
         try:
             text = json.dumps(self.to_json(), indent=1, ensure_ascii=False, allow_nan=False)
             (staging / "results.json").write_text(text + "\n", encoding="utf-8")
+            if self.semirigid is not None:
+                write_mesh_files(staging, self.plan, self.semirigid.solution)
             _replace_folder(staging, folder)
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
@@ -85,8 +93,9 @@ def _replace_folder(staging: Path, folder: Path) -> None:
         os.replace(staging, folder)
 
 
-def analyze(plan: Plan) -> Results:
-    """Run every available assumption on ``plan`` for all its load cases."""
+def analyze(plan: Plan, semirigid: bool = True) -> Results:
+    """Run every assumption on ``plan`` for all its load cases (``semirigid=False``
+    skips the finite-element model)."""
     cases = expand_load_cases(plan)
     methods: dict[str, MethodResult] = {}
     unavailable: dict[str, str] = {}
@@ -95,8 +104,13 @@ def analyze(plan: Plan) -> Results:
     except AnalysisError as exc:
         unavailable["flexible"] = str(exc)
     methods["rigid"] = rigid_analysis(plan, cases)
-    unavailable.setdefault("semirigid", "the semi-rigid finite-element model is not available in this version")
-    return Results(plan, tuple(cases), methods, unavailable)
+    run = None
+    if semirigid:
+        run = semirigid_analysis(plan, cases)
+        methods["semirigid"] = run.result
+    else:
+        unavailable["semirigid"] = "not requested"
+    return Results(plan, tuple(cases), methods, unavailable, run)
 
 
 def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> dict:

@@ -35,7 +35,15 @@ from planshear.plan import GridLine, Plan
 
 from .distribution import SpanLoad
 
-__all__ = ["WallReaction", "LineDiagram", "ChordDiagram", "BeamAnalogy", "beam_analogy", "load_along_span"]
+__all__ = [
+    "WallReaction",
+    "LineDiagram",
+    "ChordDiagram",
+    "BeamAnalogy",
+    "beam_analogy",
+    "load_along_span",
+    "edge_chords",
+]
 
 SAMPLES_PER_INTERVAL = 24
 
@@ -59,8 +67,8 @@ class LineDiagram:
     reaction: float  # N, sum of wall forces along the line direction
     delivered: float  # N, shear delivered by the diaphragm from both sides
     length_available: float  # m of diaphragm present along the line
-    unit_shear_left: float  # N/m, beam shear just before the line / length available
-    unit_shear_right: float  # N/m, just after
+    unit_shear_left: float  # N/m delivered from the smaller-coordinate side, along the line
+    unit_shear_right: float  # N/m delivered from the larger-coordinate side
     stations: np.ndarray  # (n,) t in m; repeated where a concentrated force makes a jump
     force: np.ndarray  # (n,) axial force N, tension positive
     residual: float  # N, force left at the far end (zero in exact equilibrium)
@@ -87,6 +95,8 @@ class ChordDiagram:
     stations: np.ndarray  # s, m
     force: np.ndarray  # N
     depth: np.ndarray  # m
+    t_low: np.ndarray  # m, outline extent at each station
+    t_high: np.ndarray
 
     @property
     def peak_index(self) -> int:
@@ -263,7 +273,7 @@ def beam_analogy(
     if with_chords:
         with np.errstate(divide="ignore", invalid="ignore"):
             chord_force = np.where(depth > tol, moment / depth, 0.0)
-        chord = ChordDiagram("x" if axis == "y" else "y", stations, chord_force, depth)
+        chord = ChordDiagram("x" if axis == "y" else "y", stations, chord_force, depth, t_lo, t_hi)
 
     return BeamAnalogy(
         axis=axis,
@@ -346,7 +356,9 @@ def _line_diagram(
         reaction=reaction,
         delivered=delivered_to_line,
         length_available=available,
-        unit_shear_left=v_before / available if available > tol else 0.0,
+        # Delivered to the line per unit length from each side, along +t: the part on the
+        # smaller-s side pushes with −V(before), the part on the larger side with V(after).
+        unit_shear_left=-v_before / available if available > tol else 0.0,
         unit_shear_right=v_after / available if available > tol else 0.0,
         stations=stations,
         force=force,
@@ -392,3 +404,34 @@ def _running_axial_force(
             stations.append(k)
             forces.append(applied_up_to(np.array([k]), True)[0])
     return np.array(stations), -sign * np.array(forces)
+
+
+def edge_chords(plan: Plan, chord: ChordDiagram) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """Chord force of the beam analogy on each outline edge parallel to the span:
+    +M/depth on an edge that is the outline's +t extreme at a station, −M/depth on the
+    −t extreme, zero where the edge is not an extreme (e.g. the inner face of a notch).
+    Returns name ("edge i", from outline corner i to i+1) → (position along the edge
+    from its first corner (m), force (N))."""
+    s_index = 0 if chord.axis == "x" else 1
+    t_index = 1 - s_index
+    size = float(np.ptp(plan.outline, axis=0).max())
+    tol = 1e-7 * size
+    result = {}
+    outline = plan.outline
+    for i in range(len(outline)):
+        a, b = outline[i], outline[(i + 1) % len(outline)]
+        if abs(a[t_index] - b[t_index]) > tol:
+            continue  # not parallel to the span
+        lo, hi = sorted((a[s_index], b[s_index]))
+        inside = (chord.stations >= lo - tol) & (chord.stations <= hi + tol)
+        if not np.any(inside):
+            continue
+        s_here = chord.stations[inside]
+        t_edge = a[t_index]
+        top = np.abs(chord.t_high[inside] - t_edge) <= tol
+        bottom = np.abs(chord.t_low[inside] - t_edge) <= tol
+        force = np.where(top, chord.force[inside], np.where(bottom, -chord.force[inside], 0.0))
+        along = np.abs(s_here - a[s_index])
+        order = np.argsort(along, kind="stable")
+        result[f"edge {i + 1}"] = (along[order], force[order])
+    return result

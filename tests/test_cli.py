@@ -21,7 +21,7 @@ def test_demo_writes_results_per_contract(tmp_path, capsys):
     doc = json.loads((out / "results.json").read_text())
     assert doc["units"] == {"force": "kip", "position": "ft", "displacement": "in", "unit_shear": "kip/ft"}
     assert "licensed engineer" in doc["caution"]
-    for assumption in ("flexible", "rigid"):
+    for assumption in ("flexible", "rigid", "semirigid"):
         cases = doc["assumptions"][assumption]["cases"]
         for case in cases.values():
             for key in ("walls", "lines", "chords", "max_unit_shear", "max_displacement", "equilibrium_residual"):
@@ -30,7 +30,9 @@ def test_demo_writes_results_per_contract(tmp_path, capsys):
                 assert {"reaction", "collector_peak", "collector_peak_at", "collector"} <= set(line)
     assert "E+x+ecc" in doc["assumptions"]["rigid"]["cases"]
     assert "E+x+ecc" not in doc["assumptions"]["flexible"]["cases"]
-    assert "semirigid" in doc["unavailable"]
+    assert doc["unavailable"] == {}
+    for name in ("mesh.vtu", "mesh.xdmf", "mesh.msh"):
+        assert (out / name).stat().st_size > 0
 
 
 def test_run_is_repeatable_and_leaves_input_alone(tmp_path):

@@ -4,12 +4,13 @@ import textwrap
 
 import numpy as np
 import pytest
-from conftest import FT, KIP, end_walls, rectangle_plan
 from scipy import integrate
 
 from planshear.errors import AnalysisError
 from planshear.idealized import flexible_analysis
 from planshear.loads import expand_load_cases
+
+from conftest import FT, KIP, end_walls, rectangle_plan
 
 
 def _flexible(plan):
@@ -25,12 +26,18 @@ def test_simple_span_reactions_and_chord(plan_from):
     assert case.wall_forces["W1"] / KIP == pytest.approx(50.0, rel=1e-12)
     assert case.wall_forces["W2"] / KIP == pytest.approx(50.0, rel=1e-12)
     assert case.wall_forces["WA"] == 0.0 and case.wall_forces["WB"] == 0.0
-    chord = case.chords["along x"]
-    assert abs(chord.peak) / KIP == pytest.approx(25.0, rel=1e-9)
-    assert chord.peak_position / FT == pytest.approx(50.0, abs=1e-3)
+    # Edge 3 (y = 50, the side the load pushes toward) is in tension, edge 1 in compression.
+    top, bottom = case.chords["edge 3"], case.chords["edge 1"]
+    assert top.peak / KIP == pytest.approx(25.0, rel=1e-9)
+    assert bottom.peak / KIP == pytest.approx(-25.0, rel=1e-9)
+    assert top.peak_position / FT == pytest.approx(50.0, abs=1e-3)
+    assert "edge 2" not in case.chords  # the end edges are not chords for a y load
     assert case.max_unit_shear / (KIP / FT) == pytest.approx(1.0, rel=1e-6)
     line = case.lines["1"]
+    # The diaphragm east of line 1 pushes the line along +y (the load direction) with
+    # v = 1.0 k/ft; nothing lies west of it.
     assert line.unit_shear_right / (KIP / FT) == pytest.approx(1.0, rel=1e-12)
+    assert line.unit_shear_left == 0.0
     assert case.equilibrium_residual < 1e-12
 
 

@@ -4,9 +4,10 @@ import textwrap
 
 import numpy as np
 import pytest
-from conftest import FT, KIP, PSF, end_walls, rectangle_plan
 
 from planshear.loads import expand_load_cases, fpx_force, seismic_weight, windward_segments
+
+from conftest import FT, KIP, PSF, end_walls, rectangle_plan
 
 
 def test_center_of_mass_with_opening(plan_from):

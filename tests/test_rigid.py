@@ -4,10 +4,11 @@ import textwrap
 
 import numpy as np
 import pytest
-from conftest import FT, KIP, end_walls, rectangle_plan
 
 from planshear.idealized import center_of_rigidity, rigid_analysis
 from planshear.loads import expand_load_cases
+
+from conftest import FT, KIP, end_walls, rectangle_plan
 
 BOX_90x60 = textwrap.dedent('''
     [plan]

@@ -1,9 +1,10 @@
 """Wall stiffness models against published deflection formulas."""
 
 import pytest
-from conftest import FT, INCH, KIP
 
 from planshear.stiffness import pier_stiffness, wood_wall_stiffness
+
+from conftest import FT, INCH, KIP
 
 KSI = 6.894757e6  # Pa (NIST SP 811, 2008, B.9)
 PSI = 6.894757e3

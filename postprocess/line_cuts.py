@@ -1,0 +1,272 @@
+"""Line cuts of the semi-rigid solution: forces along grid lines from nodal internal forces.
+
+For every grid line, the line's nodes form a strip of zero width. Each node is in exact
+equilibrium between
+
+* the nodal forces of the membrane elements on either side of the line (the shear that
+  the diaphragm delivers from that side; elements are assigned to a side by their
+  centroid),
+* the applied load at the node,
+* the springs of the walls on this line (the wall reactions),
+* bars and springs that belong to other lines but share the node (crossing members),
+* the bars lying on this line (collector or chord).
+
+The collector diagram is the bar force N(t) (tension positive) plus the membrane force
+along the line within the member's effective strip width. The running sum of everything
+but the bars on the line, node by node from the start, must equal −N at every element
+boundary and zero at the far end; the largest difference is the reported residual.
+
+Per-unit-length values divide each nodal force by the node's tributary length for a
+uniform distribution on the line's edges (L/6 at ends and 2L/3 at the mid node of a
+quadratic edge, L/2 for linear edges), which recovers a uniform shear flow exactly.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+
+from planshear.fem.elements import _geometry, membrane_strain_matrix
+from planshear.fem.model import Solution, element_dofs
+from planshear.plan import GridLine, Plan
+from planshear.results import ChordResult, LineResult
+
+__all__ = ["LineCut", "cut_line", "line_results_all_cases", "membrane_forces", "outline_edge_chords"]
+
+
+@dataclass(frozen=True, eq=False)
+class LineCut:
+    """Line-cut quantities for one line, all cases (last axis = case)."""
+
+    name: str
+    t: np.ndarray  # (k,) line coordinate of each node in order (m)
+    tributary: np.ndarray  # (k,) m
+    from_left: np.ndarray  # (k, c) N delivered by the membrane on the left/smaller side, along the line
+    from_right: np.ndarray  # (k, c)
+    applied: np.ndarray  # (k, c) N, loads and crossing members at the nodes
+    wall: np.ndarray  # (k, c) N, force taken by the walls of this line (on the wall, along the line)
+    stations: np.ndarray  # (m,) t of the collector diagram (m)
+    bar_force: np.ndarray  # (m, c) N, tension positive
+    strip_force: np.ndarray  # (m, c) N, membrane force within the effective width
+    running: np.ndarray  # (m, c) N, −(running sum of non-bar forces) at the same stations
+    residual: np.ndarray  # (c,) N
+
+
+def _side_sign(grid_line: GridLine) -> float:
+    """+1 if 'left' (smaller coordinate side) is the left of the line direction."""
+    if grid_line.family == "x":  # direction +y: the west (smaller x) side is on the left
+        return 1.0
+    if grid_line.family == "y":  # direction +x: the south (smaller y) side is on the right
+        return -1.0
+    return 1.0
+
+
+def membrane_forces(solution: Solution, points: str = "centroid") -> np.ndarray:
+    """Membrane forces (N_x, N_y, N_xy) in N/m for every element and case at the element
+    centroid: array (n_e, 3, n_cases)."""
+    mesh = solution.assembly.mesh
+    kind = mesh.element_type
+    ref = np.array([[1 / 3, 1 / 3]]) if kind.startswith("tri") else np.array([[0.0, 0.0]])
+    _, dN_xy, _ = _geometry(kind, mesh.nodes[mesh.elements], ref)
+    B = membrane_strain_matrix(dN_xy)[:, 0]  # (n_e, 3, d)
+    u_e = solution.displacements[element_dofs(mesh.elements)]  # (n_e, d, c)
+    strain = np.einsum("ekd,edc->ekc", B, u_e)
+    return np.einsum("ekl,elc->ekc", solution.assembly.rigidity, strain)
+
+
+def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.csr_matrix,
+             centroids: np.ndarray, membrane: np.ndarray | None) -> LineCut:
+    """Line cut along ``grid_line`` for every case (see the module docstring)."""
+    assembly = solution.assembly
+    mesh = assembly.mesh
+    line = mesh.lines[grid_line.name]
+    e = grid_line.direction
+    n_cases = solution.displacements.shape[1]
+    seq = line.node_sequence
+    k = len(seq)
+    tributary = line.tributary()
+    if k == 0:
+        empty = np.zeros((0, n_cases))
+        return LineCut(grid_line.name, np.zeros(0), np.zeros(0), empty, empty, empty, empty,
+                       np.zeros(0), empty, empty, empty, np.zeros(n_cases))
+    t = (mesh.nodes[seq] - grid_line.origin) @ e
+    position = np.full(mesh.n_nodes, -1)
+    position[seq] = np.arange(k)
+
+    # Membrane elements touching the line, by side.
+    elements = np.unique(incidence[seq].indices)
+    rel = centroids[elements] - grid_line.origin
+    left_of_direction = (e[0] * rel[:, 1] - e[1] * rel[:, 0]) > 0
+    is_left = left_of_direction if _side_sign(grid_line) > 0 else ~left_of_direction
+    dofs = element_dofs(mesh.elements[elements])
+    forces = np.einsum("mij,mjc->mic", assembly.element_matrices[elements], solution.displacements[dofs])
+    along = np.einsum("mndc,d->mnc", forces.reshape(len(elements), -1, 2, n_cases), e)  # (m, nodes, c)
+    local_pos = position[mesh.elements[elements]]  # (m, nodes)
+    from_left = np.zeros((k, n_cases))
+    from_right = np.zeros((k, n_cases))
+    on = local_pos >= 0
+    for target, mask in ((from_left, is_left), (from_right, ~is_left)):
+        sel = on & mask[:, None]
+        np.add.at(target, local_pos[sel], -along[sel])
+
+    # Bars on this line, walls on this line, and everything else at the line's nodes.
+    def edge_forces(edges: np.ndarray, matrices: np.ndarray) -> np.ndarray:
+        f = np.einsum("mij,mjc->mic", matrices, solution.displacements[element_dofs(edges)])
+        return f.reshape(len(edges), -1, 2, n_cases)
+
+    # Bars lying on the line: sum the bars that share an edge (e.g. chord and collector).
+    on_line_edges: dict[tuple[int, int], np.ndarray] = {}
+    other = np.zeros((k, n_cases))
+    for bar in assembly.bars:
+        f = edge_forces(bar.edges, bar.matrices)
+        pos = position[bar.edges]
+        mine = np.all(pos >= 0, axis=1)
+        f_e = np.einsum("mndc,d->mnc", f, e)
+        for row in np.flatnonzero(mine):
+            a, b = int(pos[row, 0]), int(pos[row, 1])
+            key = (min(a, b), max(a, b))
+            # Nodal forces in line order: start node first, then end node.
+            pair = f_e[row, [0, 1]] if a < b else f_e[row, [1, 0]]
+            on_line_edges[key] = on_line_edges.get(key, 0.0) + pair
+        touching = ~mine & np.any(pos >= 0, axis=1)
+        if np.any(touching):
+            p = pos[touching]
+            sel = p >= 0
+            np.add.at(other, p[sel], -f_e[touching][sel])
+    wall = np.zeros((k, n_cases))
+    for spring in assembly.springs:
+        f = edge_forces(spring.edges, spring.matrices)
+        pos = position[spring.edges]
+        f_e = np.einsum("mndc,d->mnc", f, e)
+        wall_on_line = next(w for w in plan.walls if w.id == spring.wall_id).line == grid_line.name
+        if wall_on_line:
+            sel = pos >= 0
+            np.add.at(wall, pos[sel], f_e[sel])
+        else:
+            sel = pos >= 0
+            np.add.at(other, pos[sel], -f_e[sel])
+    loads = solution.loads[2 * seq] * e[0] + solution.loads[2 * seq + 1] * e[1]
+    applied = loads + other
+
+    # Running sum of non-bar forces equals the on-line bar nodal forces, node by node.
+    nonbar = from_left + from_right + applied - wall
+    running_nodes = -np.cumsum(nonbar, axis=0)
+
+    if on_line_edges:
+        keys = sorted(on_line_edges)
+        pairs = np.array([on_line_edges[key] for key in keys])  # (m, 2, c)
+        # Axial force at the ends of a bar: N = −(start nodal force) = +(end nodal force).
+        stations = np.array([[t[a], t[b]] for a, b in keys]).ravel()
+        values = np.stack([-pairs[:, 0], pairs[:, 1]], axis=1).reshape(-1, n_cases)
+        start_nodes = np.array([a for a, _ in keys])
+        running = np.repeat(running_nodes[start_nodes], 2, axis=0)
+        residual_nodes = np.abs(running_nodes[start_nodes] - values[0::2]).max(axis=0)
+    else:
+        stations = np.array([t[0], t[-1]])
+        values = np.zeros((2, n_cases))
+        running = running_nodes[[0, -1]]
+        residual_nodes = np.abs(running_nodes).max(axis=0)
+    residual = np.maximum(residual_nodes, np.abs(running_nodes[-1]))
+
+    strip = np.zeros_like(values)
+    width = max((m.effective_width for m in plan.members if m.line == grid_line.name), default=0.0)
+    if width > 0 and membrane is not None:
+        strip = _strip_force(mesh, membrane, elements, e, width, centroids, grid_line, stations)
+    return LineCut(grid_line.name, t, tributary, from_left, from_right, applied, wall, stations,
+                   values, strip, running, residual)
+
+
+def _strip_force(mesh, membrane, elements, e, width, centroids, grid_line, stations) -> np.ndarray:
+    """Membrane force along the line within ``width`` (N): the axial membrane force
+    e·N·e of the elements touching the line, averaged near each station, times width."""
+    n_e = membrane[elements]  # (m, 3, c)
+    axial = n_e[:, 0] * e[0] ** 2 + n_e[:, 1] * e[1] ** 2 + 2 * n_e[:, 2] * e[0] * e[1]
+    t_el = (centroids[elements] - grid_line.origin) @ e
+    result = np.zeros((len(stations), axial.shape[1]))
+    for i, s in enumerate(stations):
+        near = np.argsort(np.abs(t_el - s))[:4]
+        result[i] = axial[near].mean(axis=0) * width
+    return result
+
+
+def _incidence(mesh) -> sp.csr_matrix:
+    n_e, n_n = mesh.elements.shape
+    rows = mesh.elements.ravel()
+    cols = np.repeat(np.arange(n_e), n_n)
+    return sp.csr_matrix((np.ones(rows.size), (rows, cols)), shape=(mesh.n_nodes, n_e))
+
+
+def outline_edge_chords(plan: Plan, solution: Solution) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """Chord bar force along each outline edge: name → (t from the edge start (m),
+    N (m, c) tension positive)."""
+    assembly = solution.assembly
+    chords = [b for b in assembly.bars if b.role == "chord" and b.name == "chords"]
+    result = {}
+    if not chords:
+        return result
+    bar = chords[0]
+    mesh = assembly.mesh
+    n_cases = solution.displacements.shape[1]
+    xy = mesh.nodes[bar.edges]
+    f = np.einsum("mij,mjc->mic", bar.matrices, solution.displacements[element_dofs(bar.edges)])
+    f = f.reshape(len(bar.edges), -1, 2, n_cases)
+    outline = plan.outline
+    for i in range(len(outline)):
+        a, b = outline[i], outline[(i + 1) % len(outline)]
+        length = float(np.hypot(*(b - a)))
+        e = (b - a) / length
+        rel = xy - a
+        across = np.abs(rel[..., 0] * e[1] - rel[..., 1] * e[0])
+        along = rel @ e
+        on = np.all(across <= 1e-7 * length, axis=1) & np.all((along >= -1e-7 * length) & (along <= length * (1 + 1e-7)), axis=1)
+        if not np.any(on):
+            continue
+        f_e = np.einsum("mndc,d->mnc", f[on], e)
+        ta, tb = along[on][:, 0], along[on][:, 1]
+        forward = ta < tb
+        start = np.where(forward[:, None], -f_e[:, 0], -f_e[:, 1])
+        end = np.where(forward[:, None], f_e[:, 1], f_e[:, 0])
+        t0, t1 = np.minimum(ta, tb), np.maximum(ta, tb)
+        stations = np.concatenate([t0, t1])
+        values = np.concatenate([start, end])
+        order = np.argsort(stations, kind="stable")
+        result[f"edge {i + 1}"] = (stations[order], values[order])
+    return result
+
+
+def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple[dict, dict, tuple[float, np.ndarray]]]:
+    """For every case of the solution: LineResults by grid line, ChordResults by outline
+    edge, and the largest element-average unit shear |N_xy| (N/m) with its location."""
+    mesh = solution.assembly.mesh
+    corners = 3 if mesh.element_type.startswith("tri") else 4
+    centroids = mesh.nodes[mesh.elements[:, :corners]].mean(axis=1)
+    incidence = _incidence(mesh)
+    membrane = membrane_forces(solution)
+    cuts = {g.name: cut_line(plan, solution, g, incidence, centroids, membrane) for g in plan.grid_lines}
+    chords = outline_edge_chords(plan, solution)
+    per_case = []
+    for j in range(solution.displacements.shape[1]):
+        lines = {}
+        for name, cut in cuts.items():
+            if len(cut.t) == 0:
+                continue
+            q_left = cut.from_left[:, j] / cut.tributary
+            q_right = cut.from_right[:, j] / cut.tributary
+            lines[name] = LineResult(
+                name=name,
+                reaction=float(cut.wall[:, j].sum()),
+                delivered=float((cut.from_left[:, j] + cut.from_right[:, j]).sum()),
+                unit_shear_left=float(q_left[np.argmax(np.abs(q_left))]),
+                unit_shear_right=float(q_right[np.argmax(np.abs(q_right))]),
+                stations=cut.stations,
+                collector=cut.bar_force[:, j] + cut.strip_force[:, j],
+                residual=float(cut.residual[j]),
+                side_shear=np.column_stack([cut.t, q_left, q_right]),
+            )
+        chord_results = {name: ChordResult(name, st, val[:, j]) for name, (st, val) in chords.items()}
+        shear = np.abs(membrane[:, 2, j])
+        k = int(np.argmax(shear))
+        per_case.append((lines, chord_results, (float(shear[k]), centroids[k])))
+    return per_case
