@@ -114,27 +114,45 @@ def _short_json(results: Results) -> dict:
 def _print_results(results: Results, out: Path) -> None:
     doc = results.to_json()
     units = doc["units"]
+    force = units["force"]
     print(f"plan: {doc['plan']['name']}")
-    for assumption, method in doc["assumptions"].items():
-        cases = list(method["cases"])
-        print(f"\n{assumption} — wall forces ({units['force']})")
-        walls = list(doc["plan"]["wall_stiffness"])
-        width = max(9, *(len(c) + 1 for c in cases))
-        print("  " + "wall".ljust(6) + "".join(c.rjust(width) for c in cases))
-        for wall in walls:
-            row = "".join(f"{method['cases'][c]['walls'][wall]:{width}.2f}" for c in cases)
-            print("  " + wall.ljust(6) + row)
-        print(f"  collector peaks ({units['force']}) at position ({units['position']}):")
-        names = sorted({n for c in cases for n in method["cases"][c]["lines"]})
-        for name in names:
-            cells = []
-            for c in cases:
-                line = method["cases"][c]["lines"].get(name)
-                cells.append(f"{line['collector_peak']:8.2f}@{line['collector_peak_at']:<6.4g}" if line else " " * 15)
-            print("  " + name.ljust(6) + " ".join(cells))
+    classification = doc.get("classification")
+    if classification:
+        print("\nflexibility (" + classification["criterion"] + ")")
+        for axis, check in classification["directions"].items():
+            print(f"  load along {axis}: {check['verdict']}")
+            governing = [s for s in check["spans"] if f"{s['span']} ({s['case']})" == check["governing_span"]]
+            for span in governing:
+                ratio = "inf" if span["ratio"] is None else f"{span['ratio']:.2f}"
+                print(f"    governing span {span['span']} ({span['case']}): MDD {span['MDD']:.3f} {units['displacement']}, "
+                      f"ADVE {span['ADVE']:.3f} {units['displacement']}, ratio {ratio}")
+    methods = list(doc["assumptions"])
+    envelope = doc.get("envelope") or {}
+    print(f"\nwall forces ({force}): largest magnitude over all cases; design = envelope of allowed assumptions")
+    header = "  " + "wall".ljust(8) + "".join(m.rjust(11) for m in methods) + "design".rjust(11) + "  governs"
+    print(header)
+    for wall in doc["plan"]["wall_stiffness"]:
+        cells = []
+        for m in methods:
+            values = [c["walls"][wall] for c in doc["assumptions"][m]["cases"].values()]
+            cells.append(f"{max(values, key=abs):11.2f}" if values else " " * 11)
+        design = envelope.get("walls", {}).get(wall, {}).get("design")
+        tail = f"{design['value']:11.2f}  {design['assumption']} {design['case']}" if design else ""
+        print("  " + wall.ljust(8) + "".join(cells) + tail)
+    print(f"\ncollector peaks ({force}): design envelope and with overstrength Ω0 (seismic cases)")
+    for name, slots in envelope.get("collectors", {}).items():
+        design, omega = slots.get("design"), slots.get("with_overstrength")
+        if design:
+            print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
+                  f"×Ω0: {omega['value']:.2f}")
+    print(f"\nchord peaks ({force}, tension +)")
+    for name, slots in envelope.get("chords", {}).items():
+        design = slots.get("design")
+        if design:
+            print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     for assumption, reason in doc["unavailable"].items():
         print(f"\n{assumption}: not run — {reason}")
-    print(f"\nresults written to {out}/results.json")
+    print(f"\nresults written to {out}/")
     print(CAUTION)
 
 

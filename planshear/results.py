@@ -9,7 +9,16 @@ import numpy as np
 
 from .units import OutputUnits
 
-__all__ = ["LineResult", "ChordResult", "CaseResult", "MethodResult", "method_to_json"]
+__all__ = [
+    "LineResult",
+    "ChordResult",
+    "CaseResult",
+    "MethodResult",
+    "method_to_json",
+    "classification_to_json",
+    "envelope_to_json",
+    "comparison_to_json",
+]
 
 
 @dataclass(frozen=True, eq=False)
@@ -156,4 +165,74 @@ def method_to_json(method: MethodResult, units: OutputUnits) -> dict:
             out[key] = [_r(units.length_out(float(c))) for c in value]
         else:
             out[key] = value
+    return out
+
+
+def classification_to_json(classification, units: OutputUnits) -> dict | None:
+    """Flexibility check per direction and span (MDD and ADVE in displacement units)."""
+    if classification is None:
+        return None
+    out = {
+        "criterion": "ASCE 7-16 §12.3.1.3: may be idealized as flexible when MDD/ADVE > 2",
+        "idealized_flexible_stated": classification.idealized_flexible,
+        "idealized_rigid_stated": classification.idealized_rigid,
+        "directions": {},
+    }
+    for axis, check in classification.directions.items():
+        governing = check.governing
+        out["directions"][axis] = {
+            "verdict": classification.verdict(axis),
+            "flexible_allowed": classification.flexible_allowed(axis),
+            "rigid_allowed": classification.rigid_allowed,
+            "governing_span": None if governing is None else f"{governing.left_line}-{governing.right_line} ({governing.case})",
+            "spans": [
+                {
+                    "case": span.case,
+                    "span": f"{span.left_line}-{span.right_line}",
+                    "MDD": _r(units.displacement_out(span.mdd)),
+                    "MDD_at": [_r(units.length_out(c)) for c in span.mdd_at],
+                    "ADVE": _r(units.displacement_out(span.adve)),
+                    "ratio": _r(span.ratio) if np.isfinite(span.ratio) else None,
+                    "flexible": span.flexible,
+                    "behaviour": span.behaviour,
+                }
+                for span in check.spans
+            ],
+            "notes": list(check.notes),
+        }
+    return out
+
+
+def _governing(item, units: OutputUnits) -> dict | None:
+    if item is None:
+        return None
+    return {"value": _r(units.force_out(item.value)), "assumption": item.assumption, "case": item.case}
+
+
+def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
+    """Design envelope: governing value, assumption and case per wall, line and chord."""
+    if envelope is None:
+        return None
+
+    def table(entries):
+        return {name: {k: _governing(v, units) for k, v in slots.items()} for name, slots in entries.items()}
+
+    return {
+        "allowed_assumptions": {axis: list(names) for axis, names in envelope.allowed.items()},
+        "walls": table(envelope.walls),
+        "line_reactions": table(envelope.line_reactions),
+        "collectors": table(envelope.collectors),
+        "chords": table(envelope.chords),
+    }
+
+
+def comparison_to_json(table: dict, units: OutputUnits) -> dict:
+    out: dict = {}
+    for wall_id, per_case in table.items():
+        out[wall_id] = {}
+        for case_name, values in per_case.items():
+            out[wall_id][case_name] = {
+                key: (None if value is None else (_r(value, 4) if "/" in key else _r(units.force_out(value))))
+                for key, value in values.items()
+            }
     return out

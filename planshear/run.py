@@ -14,7 +14,15 @@ from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
 from .plan import Plan
-from .results import MethodResult, method_to_json
+from .postprocess.classify import Classification, classify
+from .postprocess.envelope import Envelope, build_envelope, compare_walls
+from .results import (
+    MethodResult,
+    classification_to_json,
+    comparison_to_json,
+    envelope_to_json,
+    method_to_json,
+)
 from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
 
@@ -37,6 +45,9 @@ class Results:
     methods: dict[str, MethodResult]
     unavailable: dict[str, str] = field(default_factory=dict)
     semirigid: SemirigidRun | None = None
+    classification: Classification | None = None
+    sensitivity: dict[float, MethodResult] = field(default_factory=dict)
+    envelope: Envelope | None = None
 
     @property
     def units(self) -> OutputUnits:
@@ -57,6 +68,10 @@ class Results:
             "caution": CAUTION,
             "assumptions": {name: method_to_json(m, units) for name, m in self.methods.items()},
             "unavailable": dict(self.unavailable),
+            "classification": classification_to_json(self.classification, units),
+            "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
+            "envelope": envelope_to_json(self.envelope, units),
+            "comparison": comparison_to_json(compare_walls(self.methods), units),
         }
 
     def write(self, folder: str | Path) -> Path:
@@ -105,12 +120,21 @@ def analyze(plan: Plan, semirigid: bool = True) -> Results:
         unavailable["flexible"] = str(exc)
     methods["rigid"] = rigid_analysis(plan, cases)
     run = None
+    classification = None
+    sensitivity: dict[float, MethodResult] = {}
     if semirigid:
         run = semirigid_analysis(plan, cases)
         methods["semirigid"] = run.result
+        classification = classify(plan, run.solution)
+        for factor in plan.classification.sensitivity:
+            sensitivity[factor] = semirigid_analysis(plan, cases, mesh=run.mesh, stiffness_factor=factor).result
     else:
         unavailable["semirigid"] = "not requested"
-    return Results(plan, tuple(cases), methods, unavailable, run)
+    enveloped = dict(methods)
+    for factor, method in sensitivity.items():
+        enveloped[f"semirigid@{factor:g}"] = method
+    envelope = build_envelope(enveloped, cases, classification)
+    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope)
 
 
 def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> dict:

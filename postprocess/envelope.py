@@ -1,0 +1,112 @@
+"""Comparison of the assumptions and the design envelope.
+
+The envelope of a quantity is its largest magnitude over the assumptions the code allows
+(see :mod:`planshear.postprocess.classify`) and over every case, with the assumption and
+case that govern. Values under assumptions that are not allowed are kept as information.
+Because every base case is enveloped together with its ±ecc cases, accidental torsion
+never reduces a design force. Collector forces of seismic cases are also given multiplied
+by the load's collector overstrength Ω0, separately.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from planshear.loads import LoadCase
+from planshear.results import MethodResult
+
+from .classify import Classification
+
+__all__ = ["Governing", "Envelope", "build_envelope", "compare_walls"]
+
+
+@dataclass(frozen=True)
+class Governing:
+    value: float  # signed, SI
+    assumption: str
+    case: str
+
+
+@dataclass(frozen=True)
+class Envelope:
+    allowed: dict[str, tuple[str, ...]]  # axis → assumptions allowed for design
+    walls: dict[str, dict[str, Governing | None]]  # id → {"design", "information"}
+    line_reactions: dict[str, dict[str, Governing | None]]
+    collectors: dict[str, dict[str, Governing | None]]  # name → {"design", "with_overstrength", "information"}
+    chords: dict[str, dict[str, Governing | None]]
+
+
+def _allowed(classification: Classification | None, methods: dict[str, MethodResult]) -> dict[str, tuple[str, ...]]:
+    result = {}
+    for axis in ("x", "y"):
+        names = [m for m in methods if m.startswith("semirigid")]
+        if classification is None:
+            names += [m for m in ("flexible", "rigid") if m in methods]
+        else:
+            if classification.flexible_allowed(axis) and "flexible" in methods:
+                names.append("flexible")
+            if classification.rigid_allowed and "rigid" in methods:
+                names.append("rigid")
+        result[axis] = tuple(names)
+    return result
+
+
+def _better(current: Governing | None, value: float, assumption: str, case: str) -> Governing:
+    if current is None or abs(value) > abs(current.value):
+        return Governing(value, assumption, case)
+    return current
+
+
+def build_envelope(
+    methods: dict[str, MethodResult], cases: list[LoadCase] | tuple[LoadCase, ...], classification: Classification | None
+) -> Envelope:
+    """Envelope over allowed assumptions and all cases (see module docstring)."""
+    allowed = _allowed(classification, methods)
+    by_name = {c.name: c for c in cases}
+    walls: dict[str, dict[str, Governing | None]] = {}
+    reactions: dict[str, dict[str, Governing | None]] = {}
+    collectors: dict[str, dict[str, Governing | None]] = {}
+    chords: dict[str, dict[str, Governing | None]] = {}
+    for assumption, method in methods.items():
+        for case_name, result in method.cases.items():
+            case = by_name[case_name]
+            design = assumption in allowed[case.axis]
+            omega = case.collector_overstrength if case.kind == "seismic" else 1.0
+            for wall_id, force in result.wall_forces.items():
+                slot = walls.setdefault(wall_id, {"design": None, "information": None})
+                slot["information"] = _better(slot["information"], force, assumption, case_name)
+                if design:
+                    slot["design"] = _better(slot["design"], force, assumption, case_name)
+            for name, line in result.lines.items():
+                r = reactions.setdefault(name, {"design": None, "information": None})
+                c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
+                r["information"] = _better(r["information"], line.reaction, assumption, case_name)
+                c["information"] = _better(c["information"], line.peak, assumption, case_name)
+                if design:
+                    r["design"] = _better(r["design"], line.reaction, assumption, case_name)
+                    c["design"] = _better(c["design"], line.peak, assumption, case_name)
+                    c["with_overstrength"] = _better(c["with_overstrength"], omega * line.peak, assumption, case_name)
+            for name, chord in result.chords.items():
+                slot = chords.setdefault(name, {"design": None, "information": None})
+                slot["information"] = _better(slot["information"], chord.peak, assumption, case_name)
+                if design:
+                    slot["design"] = _better(slot["design"], chord.peak, assumption, case_name)
+    return Envelope(allowed, walls, reactions, collectors, chords)
+
+
+def compare_walls(methods: dict[str, MethodResult]) -> dict[str, dict[str, dict[str, float | None]]]:
+    """Wall force per case under each assumption, with the ratios semi-rigid / flexible
+    and semi-rigid / rigid (None where a value is missing or zero)."""
+    table: dict[str, dict[str, dict[str, float | None]]] = {}
+    for assumption, method in methods.items():
+        for case_name, result in method.cases.items():
+            for wall_id, force in result.wall_forces.items():
+                table.setdefault(wall_id, {}).setdefault(case_name, {})[assumption] = force
+    for per_case in table.values():
+        for values in per_case.values():
+            semi = values.get("semirigid")
+            for other in ("flexible", "rigid"):
+                base = values.get(other)
+                ratio = semi / base if semi is not None and base not in (None, 0.0) and abs(base) > 1e-9 else None
+                values[f"semirigid/{other}"] = ratio
+    return table
