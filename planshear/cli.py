@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import time
 from importlib import resources
 from pathlib import Path
 
@@ -33,10 +34,12 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--out", default=None, help="output folder (default: <plan name>-results)")
     run.add_argument("--format", choices=("text", "json"), default="text")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    run.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
     demo = sub.add_parser("demo", help="analyze the built-in demo plan")
     demo.add_argument("--out", default="planshear-demo", help="output folder (default: planshear-demo)")
     demo.add_argument("--format", choices=("text", "json"), default="text")
     demo.add_argument("--quiet", action="store_true")
+    demo.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
     return parser
 
 
@@ -60,8 +63,11 @@ def main(argv: list[str] | None = None) -> int:
         else:
             plan = load_plan(args.plan)
             out = Path(args.out) if args.out else Path(f"{Path(args.plan).stem}-results")
-        results = analyze(plan)
-        results.write(out)
+        progress = _progress_printer(quiet=args.quiet or args.format == "json")
+        results = analyze(plan, progress=progress)
+        progress("writing results, report, figures and mesh files")
+        results.write(out, report=not args.no_report)
+        progress("done")
         if args.format == "json":
             print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))
         elif not args.quiet:
@@ -83,6 +89,18 @@ def main(argv: list[str] | None = None) -> int:
         print(f"internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         print("This is a bug in planshear; please report it with the plan file.", file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def _progress_printer(quiet: bool):
+    """Stage messages with elapsed time on stderr, only when it is a terminal."""
+    if quiet or not sys.stderr.isatty():
+        return lambda stage: None
+    start = time.perf_counter()
+
+    def show(stage: str) -> None:
+        print(f"[{time.perf_counter() - start:6.1f} s] {stage}", file=sys.stderr, flush=True)
+
+    return show
 
 
 def _print_check(summary: dict) -> None:

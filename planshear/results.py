@@ -148,6 +148,11 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             }
         elif key == "solver_residual":
             out[key] = value
+        elif key == "unit_shear_by_zone":
+            out[key] = {
+                zone: {"value": _r(units.line_force_out(v)), "at": [_r(units.length_out(c)) for c in at]}
+                for zone, (v, at) in value.items()
+            }
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:

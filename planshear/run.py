@@ -6,9 +6,11 @@ import json
 import os
 import shutil
 import tempfile
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .caution import CAUTION
 from .errors import AnalysisError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
@@ -28,11 +30,6 @@ from .units import OutputUnits
 
 __all__ = ["Results", "analyze", "plan_summary", "CAUTION"]
 
-CAUTION = (
-    "planshear results are an aid to design, not a design. They must be reviewed and "
-    "accepted by a licensed engineer, and the governing local building code and its "
-    "referenced standards take precedence over anything this program reports."
-)
 
 
 @dataclass(frozen=True, eq=False)
@@ -74,9 +71,10 @@ class Results:
             "comparison": comparison_to_json(compare_walls(self.methods), units),
         }
 
-    def write(self, folder: str | Path) -> Path:
+    def write(self, folder: str | Path, report: bool = True) -> Path:
         """Write the output folder completely or not at all: everything goes into a
-        temporary folder next to ``folder`` that replaces it only once complete."""
+        temporary folder next to ``folder`` that replaces it only once complete.
+        ``report=False`` leaves out the report, tables and figures."""
         folder = Path(folder)
         parent = folder.resolve().parent
         parent.mkdir(parents=True, exist_ok=True)
@@ -85,10 +83,17 @@ class Results:
         os.umask(umask)
         staging.chmod(0o777 & ~umask)  # mkdtemp makes it private; the result folder is not
         try:
-            text = json.dumps(self.to_json(), indent=1, ensure_ascii=False, allow_nan=False)
+            doc = self.to_json()
+            text = json.dumps(doc, indent=1, ensure_ascii=False, allow_nan=False)
             (staging / "results.json").write_text(text + "\n", encoding="utf-8")
             if self.semirigid is not None:
                 write_mesh_files(staging, self.plan, self.semirigid.solution)
+            if report:
+                from .report import (
+                    write_review_package,  # the report module imports this one's types
+                )
+
+                write_review_package(staging, self, json.loads(text))
             _replace_folder(staging, folder)
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
@@ -108,9 +113,12 @@ def _replace_folder(staging: Path, folder: Path) -> None:
         os.replace(staging, folder)
 
 
-def analyze(plan: Plan, semirigid: bool = True) -> Results:
+def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] | None = None) -> Results:
     """Run every assumption on ``plan`` for all its load cases (``semirigid=False``
-    skips the finite-element model)."""
+    skips the finite-element model). ``progress`` is called with a short description of
+    each stage as it starts (the CLI shows it on a terminal)."""
+    report = progress or (lambda stage: None)
+    report("load cases and idealized methods")
     cases = expand_load_cases(plan)
     methods: dict[str, MethodResult] = {}
     unavailable: dict[str, str] = {}
@@ -123,10 +131,12 @@ def analyze(plan: Plan, semirigid: bool = True) -> Results:
     classification = None
     sensitivity: dict[float, MethodResult] = {}
     if semirigid:
-        run = semirigid_analysis(plan, cases)
+        run = semirigid_analysis(plan, cases, progress=report)
         methods["semirigid"] = run.result
+        report("flexibility classification")
         classification = classify(plan, run.solution)
         for factor in plan.classification.sensitivity:
+            report(f"sensitivity: diaphragm stiffness × {factor:g}")
             sensitivity[factor] = semirigid_analysis(plan, cases, mesh=run.mesh, stiffness_factor=factor).result
     else:
         unavailable["semirigid"] = "not requested"

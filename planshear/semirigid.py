@@ -6,6 +6,7 @@ Returns the same :class:`MethodResult` type as the idealized methods, plus the
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -30,16 +31,26 @@ class SemirigidRun:
 
 
 def semirigid_analysis(
-    plan: Plan, cases: list[LoadCase], mesh: Mesh | None = None, stiffness_factor: float = 1.0
+    plan: Plan,
+    cases: list[LoadCase],
+    mesh: Mesh | None = None,
+    stiffness_factor: float = 1.0,
+    progress: Callable[[str], None] | None = None,
 ) -> SemirigidRun:
     """Finite-element analysis of the diaphragm on wall springs for every case that the
     semi-rigid assumption uses. ``stiffness_factor`` scales the membrane rigidities
     (sensitivity bounds); ``mesh`` may be passed to reuse one mesh."""
+    report = progress or (lambda stage: None)
     selected = [c for c in cases if "semirigid" in c.assumptions]
-    mesh = build_mesh(plan) if mesh is None else mesh
+    if mesh is None:
+        report("meshing")
+        mesh = build_mesh(plan)
+    report(f"assembling {mesh.n_dofs} degrees of freedom")
     assembly = assemble(plan, mesh, stiffness_factor)
     loads = load_vectors(plan, mesh, selected)
+    report(f"factorizing and solving {len(selected)} cases")
     solution = solve(assembly, plan, selected, loads)
+    report("line cuts")
     results = {}
     per_case = line_results_all_cases(plan, solution)
     for j, case in enumerate(selected):
@@ -48,7 +59,7 @@ def semirigid_analysis(
         applied = case.force * case.direction
         residual = float(np.max(np.abs(total - applied))) / case.force
         u = solution.node_displacements(j)
-        lines, chords, unit_shear = per_case[j]
+        lines, chords, unit_shear, by_zone = per_case[j]
         results[case.name] = CaseResult(
             case=case.name,
             axis=case.axis,
@@ -61,7 +72,7 @@ def semirigid_analysis(
             max_unit_shear_at=unit_shear[1],
             max_displacement=float(np.max(np.hypot(u[:, 0], u[:, 1]))),
             equilibrium_residual=max(residual, float(solution.residual[j])),
-            extra={"solver_residual": float(f"{solution.residual[j]:.3e}")},
+            extra={"solver_residual": float(f"{solution.residual[j]:.3e}"), "unit_shear_by_zone": by_zone},
         )
     notes = (
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "

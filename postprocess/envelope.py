@@ -30,7 +30,7 @@ class Governing:
 @dataclass(frozen=True)
 class Envelope:
     allowed: dict[str, tuple[str, ...]]  # axis → assumptions allowed for design
-    walls: dict[str, dict[str, Governing | None]]  # id → {"design", "information"}
+    walls: dict[str, dict[str, Governing | None]]  # id → {"design", "information", <assumption>…}
     line_reactions: dict[str, dict[str, Governing | None]]
     collectors: dict[str, dict[str, Governing | None]]  # name → {"design", "with_overstrength", "information"}
     chords: dict[str, dict[str, Governing | None]]
@@ -75,6 +75,7 @@ def build_envelope(
             for wall_id, force in result.wall_forces.items():
                 slot = walls.setdefault(wall_id, {"design": None, "information": None})
                 slot["information"] = _better(slot["information"], force, assumption, case_name)
+                slot[assumption] = _better(slot.get(assumption), force, assumption, case_name)
                 if design:
                     slot["design"] = _better(slot["design"], force, assumption, case_name)
             for name, line in result.lines.items():

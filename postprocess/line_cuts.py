@@ -236,9 +236,10 @@ def outline_edge_chords(plan: Plan, solution: Solution) -> dict[str, tuple[np.nd
     return result
 
 
-def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple[dict, dict, tuple[float, np.ndarray]]]:
+def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple]:
     """For every case of the solution: LineResults by grid line, ChordResults by outline
-    edge, and the largest element-average unit shear |N_xy| (N/m) with its location."""
+    edge, the largest element-average unit shear |N_xy| (N/m) with its location, and the
+    same per zone ("main" for the diaphragm's own material)."""
     mesh = solution.assembly.mesh
     corners = 3 if mesh.element_type.startswith("tri") else 4
     centroids = mesh.nodes[mesh.elements[:, :corners]].mean(axis=1)
@@ -268,5 +269,11 @@ def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple[dict, d
         chord_results = {name: ChordResult(name, st, val[:, j]) for name, (st, val) in chords.items()}
         shear = np.abs(membrane[:, 2, j])
         k = int(np.argmax(shear))
-        per_case.append((lines, chord_results, (float(shear[k]), centroids[k])))
+        by_zone = {}
+        for zone in np.unique(mesh.element_zone):
+            members = np.flatnonzero(mesh.element_zone == zone)
+            best = members[int(np.argmax(shear[members]))]
+            name = "main" if zone < 0 else plan.zones[zone].name
+            by_zone[name] = (float(shear[best]), centroids[best])
+        per_case.append((lines, chord_results, (float(shear[k]), centroids[k]), by_zone))
     return per_case

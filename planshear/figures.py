@@ -1,0 +1,205 @@
+"""Figures for the review package (matplotlib, object API only: no global state).
+
+Visual style of our own: each assumption has a colour and a line style that stay
+distinguishable in black-and-white print (flexible: long dashes with squares; rigid:
+dash-dot with triangles; semi-rigid: solid with circles). Figures are written as PNG and
+SVG; the SVG text is also returned for inlining in the HTML report.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.collections import PolyCollection
+from matplotlib.figure import Figure
+
+__all__ = ["STYLE", "FigureFile", "plan_figure", "collector_figure", "chord_figure", "shear_map_figure",
+           "deflected_figure", "save"]
+
+STYLE = {
+    "flexible": {"color": "#b35806", "linestyle": (0, (6, 2)), "marker": "s"},
+    "rigid": {"color": "#542788", "linestyle": "-.", "marker": "^"},
+    "semirigid": {"color": "#1f6f8b", "linestyle": "-", "marker": "o"},
+}
+INK = "#222222"
+PAPER = "#fbfaf6"
+WALL = "#c0392b"
+MEMBER = "#16a085"
+GRID = "#9a9a9a"
+
+
+@dataclass(frozen=True)
+class FigureFile:
+    name: str  # file stem under figures/
+    title: str
+    svg: str  # SVG text for inlining
+
+
+def _figure(width: float = 7.5, height: float = 4.5) -> tuple[Figure, object]:
+    fig = Figure(figsize=(width, height), facecolor=PAPER)
+    FigureCanvasAgg(fig)
+    ax = fig.add_subplot(1, 1, 1)
+    ax.set_facecolor("white")
+    for spine in ax.spines.values():
+        spine.set_color(INK)
+    ax.tick_params(colors=INK, labelsize=8)
+    return fig, ax
+
+
+def save(fig: Figure, folder: Path, name: str, title: str) -> FigureFile:
+    """Write ``name``.png and ``name``.svg into ``folder``; return the SVG text."""
+    folder.mkdir(parents=True, exist_ok=True)
+    fig.tight_layout()
+    fig.savefig(folder / f"{name}.png", dpi=110, facecolor=fig.get_facecolor())
+    # No date in the metadata, so that a rerun writes the same files.
+    fig.savefig(folder / f"{name}.svg", facecolor=fig.get_facecolor(), metadata={"Date": None})
+    svg = (folder / f"{name}.svg").read_text(encoding="utf-8")
+    svg = svg[svg.index("<svg"):]  # drop the XML prolog and doctype for inlining
+    start, end = svg.find("<metadata>"), svg.find("</metadata>")
+    if start >= 0 and end > start:
+        svg = svg[:start] + svg[end + len("</metadata>"):]
+    return FigureFile(name, title, svg)
+
+
+def plan_figure(doc: dict, plan) -> Figure:
+    """Outline, openings, zones, grid lines, walls, members, center of mass and of rigidity."""
+    scale = 1.0 / plan.length_scale
+    fig, ax = _figure(7.5, 5.5)
+    outline = np.vstack([plan.outline, plan.outline[:1]]) * scale
+    ax.fill(outline[:, 0], outline[:, 1], color="#f1eee4", zorder=0)
+    ax.plot(outline[:, 0], outline[:, 1], color=INK, lw=1.6, zorder=3)
+    for zone in plan.zones:
+        xy = np.asarray(zone.polygon.exterior.coords) * scale
+        ax.fill(xy[:, 0], xy[:, 1], facecolor="none", edgecolor="#7f8c8d", hatch="///", lw=0.8, zorder=1)
+        c = np.asarray(zone.polygon.representative_point().coords[0]) * scale
+        ax.annotate(zone.name, c, fontsize=7, color="#555555", ha="center")
+    for opening in plan.openings:
+        xy = np.vstack([opening, opening[:1]]) * scale
+        ax.fill(xy[:, 0], xy[:, 1], color="white", zorder=2)
+        ax.plot(xy[:, 0], xy[:, 1], color=INK, lw=1.0, ls=":", zorder=3)
+        ax.plot([xy[0, 0], xy[2, 0]], [xy[0, 1], xy[2, 1]], color=INK, lw=0.5, zorder=3)
+    for line in plan.grid_lines:
+        a, b = line.point(line.t_min) * scale, line.point(line.t_max) * scale
+        ax.plot([a[0], b[0]], [a[1], b[1]], color=GRID, lw=0.6, ls=(0, (8, 3, 2, 3)), zorder=1)
+        ax.annotate(line.name, a - 0.04 * (b - a), fontsize=8, color=INK, ha="center", va="center",
+                    bbox={"boxstyle": "circle,pad=0.2", "fc": "white", "ec": GRID, "lw": 0.6})
+    for member in plan.members:
+        line = plan.line(member.line)
+        a, b = line.point(member.t_from) * scale, line.point(member.t_to) * scale
+        ax.plot([a[0], b[0]], [a[1], b[1]], color=MEMBER, lw=2.2, ls="--", zorder=4)
+    for wall in plan.walls:
+        a, b = wall.start * scale, wall.end * scale
+        ax.plot([a[0], b[0]], [a[1], b[1]], color=WALL, lw=4.5, solid_capstyle="butt", zorder=5)
+        mid = 0.5 * (a + b)
+        ax.annotate(wall.id, mid, xytext=(4, 4), textcoords="offset points", fontsize=8, color=WALL, zorder=6)
+    summary = doc["plan"]
+    for name, load in summary["loads"].items():
+        if "center_of_mass" in load:
+            cm = load["center_of_mass"]
+            ax.plot(cm[0], cm[1], marker="P", ms=9, color=INK, mfc="white", zorder=7)
+            ax.annotate(f"CM ({name})", cm, xytext=(6, -10), textcoords="offset points", fontsize=7)
+    rigid = doc["assumptions"].get("rigid", {})
+    if "center_of_rigidity" in rigid:
+        cr = rigid["center_of_rigidity"]
+        ax.plot(cr[0], cr[1], marker="X", ms=9, color=INK, zorder=7)
+        ax.annotate("CR", cr, xytext=(6, 4), textcoords="offset points", fontsize=7)
+    ax.set_aspect("equal")
+    ax.set_xlabel(f"x ({plan.length_unit})", fontsize=8)
+    ax.set_ylabel(f"y ({plan.length_unit})", fontsize=8)
+    ax.set_title("Plan: walls (red), collectors (green dashed), grid lines, openings, zones (hatched)", fontsize=9)
+    return fig
+
+
+def collector_figure(doc: dict, line: str, cases: dict[str, str]) -> Figure:
+    """Collector force along a line under each assumption for the given cases
+    (assumption → case name), peaks marked."""
+    units = doc["units"]
+    fig, ax = _figure(7.5, 3.2)
+    for assumption, case_name in cases.items():
+        data = doc["assumptions"].get(assumption, {}).get("cases", {}).get(case_name, {}).get("lines", {}).get(line)
+        if not data:
+            continue
+        diagram = np.array(data["collector"], dtype=float)
+        if len(diagram) == 0:
+            continue
+        style = STYLE[assumption]
+        ax.plot(diagram[:, 0], diagram[:, 1], color=style["color"], ls=style["linestyle"], lw=1.5,
+                label=f"{assumption} ({case_name})")
+        ax.plot(data["collector_peak_at"], data["collector_peak"], marker=style["marker"], color=style["color"],
+                ms=7, mfc="white")
+        ax.annotate(f"{data['collector_peak']:.1f}", (data["collector_peak_at"], data["collector_peak"]),
+                    xytext=(4, 4), textcoords="offset points", fontsize=7, color=style["color"])
+    ax.axhline(0.0, color=INK, lw=0.6)
+    ax.set_xlabel(f"position along line {line} ({units['position']})", fontsize=8)
+    ax.set_ylabel(f"N ({units['force']}), tension +", fontsize=8)
+    ax.legend(fontsize=7, frameon=False)
+    ax.set_title(f"Collector force along line {line}", fontsize=9)
+    return fig
+
+
+def chord_figure(doc: dict, edge: str, cases: dict[str, str]) -> Figure:
+    units = doc["units"]
+    fig, ax = _figure(7.5, 3.0)
+    for assumption, case_name in cases.items():
+        data = doc["assumptions"].get(assumption, {}).get("cases", {}).get(case_name, {}).get("chords", {}).get(edge)
+        if not data or not data["diagram"]:
+            continue
+        diagram = np.array(data["diagram"], dtype=float)
+        style = STYLE[assumption]
+        ax.plot(diagram[:, 0], diagram[:, 1], color=style["color"], ls=style["linestyle"], lw=1.5,
+                label=f"{assumption} ({case_name})")
+        ax.plot(data["peak_at"], data["peak"], marker=style["marker"], color=style["color"], ms=7, mfc="white")
+    ax.axhline(0.0, color=INK, lw=0.6)
+    ax.set_xlabel(f"position along {edge} from its first corner ({units['position']})", fontsize=8)
+    ax.set_ylabel(f"chord force ({units['force']}), tension +", fontsize=8)
+    ax.legend(fontsize=7, frameon=False)
+    ax.set_title(f"Chord force, {edge}", fontsize=9)
+    return fig
+
+
+def shear_map_figure(plan, mesh, unit_shear: np.ndarray, case: str, units: dict, factor: float) -> Figure:
+    """|Nxy| per element (output units) with the maximum marked."""
+    scale = 1.0 / plan.length_scale
+    corners = 3 if mesh.element_type.startswith("tri") else 4
+    polygons = mesh.nodes[mesh.elements[:, :corners]] * scale
+    values = unit_shear * factor
+    fig, ax = _figure(7.5, 5.0)
+    collection = PolyCollection(polygons, array=values, cmap="cividis", edgecolors="face", linewidths=0.1)
+    collection.set_rasterized(True)  # keeps the SVG small
+    ax.add_collection(collection)
+    cbar = fig.colorbar(collection, ax=ax, shrink=0.8)
+    cbar.set_label(f"unit shear |Nxy| ({units['unit_shear']})", fontsize=8)
+    k = int(np.argmax(values))
+    where = polygons[k].mean(axis=0)
+    ax.plot(*where, marker="*", ms=12, color=WALL, mec="white")
+    ax.annotate(f"max {values[k]:.3g}", where, xytext=(6, 6), textcoords="offset points", fontsize=8, color=WALL)
+    ax.autoscale_view()
+    ax.set_aspect("equal")
+    ax.set_title(f"Unit shear, semi-rigid, {case} (element averages)", fontsize=9)
+    return fig
+
+
+def deflected_figure(plan, mesh, displacement: np.ndarray, case: str, units: dict, disp_factor: float) -> Figure:
+    """Outline before and after deformation (magnified), colored by displacement."""
+    scale = 1.0 / plan.length_scale
+    magnitude = np.hypot(displacement[:, 0], displacement[:, 1])
+    size = float(np.ptp(mesh.nodes, axis=0).max())
+    magnify = 0.08 * size / magnitude.max() if magnitude.max() > 0 else 1.0
+    moved = (mesh.nodes + magnify * displacement) * scale
+    fig, ax = _figure(7.5, 5.0)
+    corners = 3 if mesh.element_type.startswith("tri") else 4
+    collection = PolyCollection(moved[mesh.elements[:, :corners]], array=magnitude[mesh.elements[:, :corners]].mean(axis=1) * disp_factor,
+                                cmap="viridis", edgecolors="face", linewidths=0.1)
+    collection.set_rasterized(True)
+    ax.add_collection(collection)
+    outline = np.vstack([plan.outline, plan.outline[:1]]) * scale
+    ax.plot(outline[:, 0], outline[:, 1], color=INK, lw=0.8, ls="--")
+    cbar = fig.colorbar(collection, ax=ax, shrink=0.8)
+    cbar.set_label(f"displacement ({units['displacement']})", fontsize=8)
+    ax.autoscale_view()
+    ax.set_aspect("equal")
+    ax.set_title(f"Deflected shape, semi-rigid, {case} (magnified ×{magnify:.3g}; dashed: undeformed)", fontsize=9)
+    return fig

@@ -1,0 +1,391 @@
+"""The review package: report.html (self-contained, figures inline as SVG), report.pdf
+(written directly with matplotlib), CSV tables and figures.
+
+Every number in the report's tables is taken from the results.json document itself, so
+the two always agree.
+"""
+
+from __future__ import annotations
+
+import csv
+import html
+from pathlib import Path
+
+import numpy as np
+from matplotlib.backends.backend_pdf import PdfPages
+from matplotlib.figure import Figure
+
+from . import __version__
+from .caution import CAUTION
+from .figures import (
+    FigureFile,
+    chord_figure,
+    collector_figure,
+    deflected_figure,
+    plan_figure,
+    save,
+    shear_map_figure,
+)
+
+__all__ = ["write_review_package", "write_tables", "METHODS_TEXT", "LIMITATIONS_TEXT"]
+
+METHODS_TEXT = [
+    ("Load cases", "Seismic weight from area, zone, line and point weights; Fpx by ASCE 7-16 Eq. 12.10-1 "
+     "with the bounds of Eqs. 12.10-2 and 12.10-3; accidental eccentricity ±5 % of the plan dimension "
+     "perpendicular to the load (ASCE 7-16 §12.8.4.2) for the rigid and semi-rigid assumptions."),
+    ("Wall stiffness", "Piers: Δ = Vh³/(3EI) + 1.2Vh/(AG) cantilever, Vh³/(12EI) + 1.2Vh/(AG) fixed, "
+     "G = 0.4E (masonry and concrete practice, e.g. Taly 2010 §7.4). Wood shear walls: ANSI/AWC SDPWS-2015 "
+     "Eq. 4.3-1 with the hold-down elongation proportional to the overturning force."),
+    ("Flexible", "Simple spans between adjacent lines of resistance, loads integrated exactly from the real "
+     "plan, cantilevers to the end lines; walls on a line share by stiffness."),
+    ("Rigid", "Three rigid-body degrees of freedom from the stiffness of every wall; center of rigidity from "
+     "the rigid-body flexibility; wall force = stiffness × displacement along the wall."),
+    ("Beam analogy", "Shear and moment along the span from loads and wall forces; unit shear = V / length of "
+     "diaphragm present; collector force = running sum of delivered shear minus wall reaction; chord force = M / depth."),
+    ("Semi-rigid", "Plane-stress membrane (quadratic triangles by default) with per-unit-width rigidities: wood "
+     "panels G·t = Ga (SDPWS), steel deck G·t = G′ (AISI S310), concrete E·t with a cracked-section factor; "
+     "walls as springs along the wall only, total equal to the wall stiffness; chords and collectors as bars; "
+     "one sparse factorization for every case. Verified against Cook's membrane, MacNeal–Harder (1985), "
+     "scikit-fem and the SDPWS deflection equation (see the test suite)."),
+    ("Line cuts", "Shear delivered from each side of a line from the element nodal forces (exact equilibrium); "
+     "collector force = bar force plus the membrane force within the stated effective width."),
+    ("Classification", "ASCE 7-16 §12.3.1.3: MDD / ADVE > 2 in every span → may be idealized as flexible; "
+     "§12.3.1.1 and §12.3.1.2 conditions as stated by the engineer."),
+    ("Envelope", "Largest magnitude over allowed assumptions and all cases; accidental torsion never reduces a "
+     "force because base and ±ecc cases are enveloped together; collector forces also × Ω0 for seismic cases."),
+]
+
+LIMITATIONS_TEXT = [
+    "Linear elastic analysis; wood and steel-deck stiffness values are secant values that the engineer chooses.",
+    "One diaphragm level per plan; vertical irregularities, transfer forces and load combinations are not formed.",
+    "The flexible method gives no force to walls on skewed lines.",
+    "Peaks of unit shear at re-entrant corners and wall ends depend on the mesh (stress concentrations).",
+    "Code checks are limited to the flexibility classification; capacities are not checked.",
+]
+
+
+def _esc(value) -> str:
+    return html.escape(str(value))
+
+
+def _num(value) -> str:
+    if value is None:
+        return "–"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, (int, float)):
+        return f"{value:.6g}"
+    return _esc(value)
+
+
+def _table(headers: list[str], rows: list[list], cls: str = "") -> str:
+    head = "".join(f"<th>{_esc(h)}</th>" for h in headers)
+    def cell(value) -> str:
+        numeric = isinstance(value, (int, float)) and not isinstance(value, bool)
+        return f"<td>{_num(value)}</td>" if numeric else f'<td class="text">{_num(value)}</td>'
+
+    body = "".join("<tr>" + "".join(cell(c) for c in row) + "</tr>" for row in rows)
+    return f'<table class="{cls}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>'
+
+
+def _base_cases(doc: dict) -> dict[str, str]:
+    """One representative base case per direction (the first seismic, else the first)."""
+    loads = doc["plan"]["loads"]
+    chosen: dict[str, str] = {}
+    source = doc["assumptions"].get("semirigid") or doc["assumptions"].get("rigid", {})
+    for name, case in source.get("cases", {}).items():
+        if name.endswith("ecc"):
+            continue
+        load = name.rsplit("+", 1)[0].rsplit("-", 1)[0]
+        seismic = loads.get(load, {}).get("kind") == "seismic"
+        axis = case["axis"]
+        current = chosen.get(axis)
+        current_seismic = current is not None and loads.get(current.rsplit("+", 1)[0].rsplit("-", 1)[0], {}).get("kind") == "seismic"
+        if current is None or (seismic and not current_seismic):
+            chosen[axis] = name
+    return chosen
+
+
+def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
+    """The report's tables, built only from the results document."""
+    units = doc["units"]
+    f, p, d = units["force"], units["position"], units["displacement"]
+    plan = doc["plan"]
+    tables: dict[str, tuple[list[str], list[list]]] = {}
+    tables["stiffness"] = (
+        ["wall", f"stiffness ({plan['stiffness_unit']})", "formula"],
+        [[w, s["k"], s["formula"]] for w, s in plan["wall_stiffness"].items()],
+    )
+    tables["loads"] = (
+        ["load", "kind", "directions", f"seismic weight ({f})", f"force x ({f})", f"force y ({f})", "Ω0"],
+        [[n, ld["kind"], ", ".join(ld["directions"]), ld.get("seismic_weight"), ld["force"].get("x"),
+          ld["force"].get("y"), ld["collector_overstrength"]] for n, ld in plan["loads"].items()],
+    )
+    classification = doc.get("classification") or {"directions": {}}
+    rows = []
+    for axis, check in classification["directions"].items():
+        for span in check["spans"]:
+            rows.append([axis, span["case"], span["span"], span["MDD"], span["ADVE"], span["ratio"], span["behaviour"]])
+    tables["classification"] = (["load along", "case", "span", f"MDD ({d})", f"ADVE ({d})", "MDD/ADVE", "behaviour"], rows)
+    envelope = doc.get("envelope") or {"walls": {}, "collectors": {}, "chords": {}}
+    methods = list(doc["assumptions"])
+    rows = []
+    for wall, slots in envelope["walls"].items():
+        row = [wall]
+        for m in methods:
+            g = slots.get(m)
+            row += [None, None] if g is None else [g["value"], g["case"]]
+        design = slots.get("design")
+        row += [None, None] if design is None else [design["value"], f"{design['assumption']} {design['case']}"]
+        rows.append(row)
+    headers = ["wall"]
+    for m in methods:
+        headers += [f"{m} ({f})", "case"]
+    headers += [f"design ({f})", "governs"]
+    tables["walls"] = (headers, rows)
+    tables["collectors"] = (
+        ["line", f"design peak ({f})", "governs", f"with Ω0 ({f})", f"largest of all assumptions ({f})"],
+        [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
+          s["with_overstrength"] and s["with_overstrength"]["value"], s["information"] and s["information"]["value"]]
+         for n, s in envelope["collectors"].items()],
+    )
+    tables["chords"] = (
+        ["edge", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
+        [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
+          s["information"] and s["information"]["value"]] for n, s in envelope["chords"].items()],
+    )
+    rows = []
+    semi = doc["assumptions"].get("semirigid", {}).get("cases", {})
+    for case_name, case in semi.items():
+        for zone, item in case.get("unit_shear_by_zone", {}).items():
+            rows.append([case_name, zone, item["value"], f"({item['at'][0]:.4g}, {item['at'][1]:.4g})"])
+    tables["unit_shear"] = (["case", "zone", f"max unit shear ({units['unit_shear']})", f"at ({p})"], rows)
+    rows = []
+    for m, method in doc["assumptions"].items():
+        for case_name, case in method["cases"].items():
+            rows.append([m, case_name, case["applied_force"], case["equilibrium_residual"]])
+    tables["residuals"] = (["assumption", "case", f"applied force ({f})", "relative residual"], rows)
+    return tables
+
+
+def write_tables(folder: Path, doc: dict) -> list[str]:
+    """walls.csv, lines.csv, chords.csv and classification.csv with units in the headers."""
+    units = doc["units"]
+    f, p, d, v = units["force"], units["position"], units["displacement"], units["unit_shear"]
+    written = []
+
+    def write(name: str, header: list[str], rows: list[list]) -> None:
+        with open(folder / name, "w", newline="", encoding="utf-8") as handle:
+            writer = csv.writer(handle)
+            writer.writerow(header)
+            writer.writerows(rows)
+        written.append(name)
+
+    walls, lines, chords = [], [], []
+    for m, method in doc["assumptions"].items():
+        for case_name, case in method["cases"].items():
+            for wall, force in case["walls"].items():
+                walls.append([wall, m, case_name, force, case["wall_drifts"][wall]])
+            for name, line in case["lines"].items():
+                lines.append([name, m, case_name, line["reaction"], line["collector_peak"], line["collector_peak_at"],
+                              line["unit_shear_left"], line["unit_shear_right"], line["residual"]])
+            for name, chord in case["chords"].items():
+                chords.append([name, m, case_name, chord["peak"], chord["peak_at"]])
+    write("walls.csv", ["wall", "assumption", "case", f"force [{f}]", f"drift [{d}]"], walls)
+    write("lines.csv", ["line", "assumption", "case", f"reaction [{f}]", f"collector_peak [{f}]",
+                        f"collector_peak_at [{p}]", f"unit_shear_left [{v}]", f"unit_shear_right [{v}]",
+                        f"residual [{f}]"], lines)
+    write("chords.csv", ["edge", "assumption", "case", f"peak [{f}]", f"peak_at [{p}]"], chords)
+    rows = []
+    for axis, check in ((doc.get("classification") or {}).get("directions") or {}).items():
+        for span in check["spans"]:
+            rows.append([axis, span["case"], span["span"], span["MDD"], span["ADVE"], span["ratio"],
+                         span["flexible"], span["behaviour"], check["verdict"]])
+    write("classification.csv", ["direction", "case", "span", f"MDD [{d}]", f"ADVE [{d}]", "ratio [-]",
+                                 "flexible", "behaviour", "verdict"], rows)
+    return written
+
+
+_CSS = """
+body{font-family:Georgia,'DejaVu Serif',serif;color:#222;background:#fbfaf6;max-width:60rem;margin:2rem auto;padding:0 1rem;line-height:1.4}
+h1{font-size:1.6rem;border-bottom:3px double #222;padding-bottom:.3rem}
+h2{font-size:1.15rem;margin-top:2rem;border-bottom:1px solid #999}
+table{border-collapse:collapse;font-size:.8rem;margin:.5rem 0 1rem;font-family:'DejaVu Sans Mono',monospace}
+th,td{border:1px solid #aaa;padding:.15rem .4rem;text-align:right}
+th{background:#ece8dc}
+td:first-child,th:first-child,td.text{text-align:left}
+.caution{border:2px solid #222;padding:.6rem 1rem;background:#fff;font-weight:bold}
+figure{margin:1rem 0;page-break-inside:avoid}
+figure svg{width:100%;height:auto}
+figcaption{font-size:.8rem;font-style:italic}
+@media print{body{background:#fff;max-width:none;margin:0}h2{page-break-after:avoid}table{page-break-inside:avoid}}
+"""
+
+
+def _figures(doc: dict, results, folder: Path, pdf: PdfPages) -> dict[str, list[FigureFile]]:
+    figures_dir = folder / "figures"
+    made: dict[str, list[FigureFile]] = {"plan": [], "collectors": [], "chords": [], "shear": [], "deflected": []}
+
+    def keep(section: str, fig: Figure, name: str, title: str) -> None:
+        made[section].append(save(fig, figures_dir, name, title))
+        pdf.savefig(fig)
+
+    keep("plan", plan_figure(doc, results.plan), "plan", "Plan")
+    base = _base_cases(doc)
+    assumptions = [a for a in ("flexible", "rigid", "semirigid") if a in doc["assumptions"]]
+    line_names = sorted({n for a in assumptions for c in doc["assumptions"][a]["cases"].values() for n in c["lines"]})
+    for line in line_names:
+        for axis, case_name in base.items():
+            cases = {a: case_name for a in assumptions}
+            if not any(line in doc["assumptions"][a]["cases"].get(case_name, {}).get("lines", {}) for a in assumptions):
+                continue
+            keep("collectors", collector_figure(doc, line, cases), f"collector_{_slug(line)}_{axis}",
+                 f"Collector force along line {line}, load along {axis}")
+    edges = sorted({n for a in assumptions for c in doc["assumptions"][a]["cases"].values() for n in c["chords"]},
+                   key=lambda s: int(s.split()[-1]) if s.split()[-1].isdigit() else 0)
+    for edge in edges:
+        for axis, case_name in base.items():
+            cases = {a: case_name for a in assumptions}
+            if not any(doc["assumptions"][a]["cases"].get(case_name, {}).get("chords", {}).get(edge, {}).get("diagram")
+                       for a in assumptions):
+                continue
+            keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}", f"Chord force, {edge}, load along {axis}")
+    if results.semirigid is not None:
+        from .postprocess.line_cuts import membrane_forces
+
+        solution = results.semirigid.solution
+        membrane = membrane_forces(solution)
+        names = [c.name for c in solution.cases]
+        units = results.units
+        for case_name in base.values():
+            if case_name not in names:
+                continue
+            j = names.index(case_name)
+            keep("shear", shear_map_figure(results.plan, results.semirigid.mesh, np.abs(membrane[:, 2, j]), case_name,
+                                           doc["units"], units.line_force_out(1.0)),
+                 f"unit_shear_{_slug(case_name)}", f"Unit shear, {case_name}")
+            keep("deflected", deflected_figure(results.plan, results.semirigid.mesh, solution.node_displacements(j),
+                                               case_name, doc["units"], units.displacement_out(1.0)),
+                 f"deflected_{_slug(case_name)}", f"Deflected shape, {case_name}")
+    return made
+
+
+def _slug(text: str) -> str:
+    return "".join(ch if ch.isalnum() else "_" for ch in text).strip("_")
+
+
+def _text_page(pdf: PdfPages, title: str, lines: list[str]) -> None:
+    fig = Figure(figsize=(8.27, 11.69), facecolor="white")
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    FigureCanvasAgg(fig)
+    fig.text(0.07, 0.95, title, fontsize=14, weight="bold", va="top")
+    y = 0.91
+    for line in lines:
+        fig.text(0.07, y, line, fontsize=7.5, family="monospace", va="top")
+        y -= 0.015
+        if y < 0.04:
+            break
+    pdf.savefig(fig)
+
+
+def _plain_rows(headers: list[str], rows: list[list]) -> list[str]:
+    cells = [headers] + [[_plain(c) for c in row] for row in rows]
+    widths = [max(len(str(r[i])) for r in cells) for i in range(len(headers))]
+    return ["  ".join(str(c).ljust(w)[:40] for c, w in zip(row, widths, strict=True)) for row in cells]
+
+
+def _plain(value) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        return f"{value:.6g}"
+    return str(value)
+
+
+def write_review_package(folder: Path, results, doc: dict) -> list[str]:
+    """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``."""
+    written = write_tables(folder, doc)
+    tables = report_tables(doc)
+    with PdfPages(folder / "report.pdf", metadata={"Title": f"planshear report: {doc['plan']['name']}",
+                                                   "Creator": f"planshear {__version__}"}) as pdf:
+        classification = doc.get("classification") or {"directions": {}}
+        summary = [
+            f"Plan: {doc['plan']['name']} ({doc['plan']['file']})",
+            f"Units: forces {doc['units']['force']}, positions {doc['units']['position']}, "
+            f"displacements {doc['units']['displacement']}",
+            "",
+            *[f"Load along {axis}: {check['verdict']}" for axis, check in classification["directions"].items()],
+            "",
+            *_wrap(CAUTION, 110),
+        ]
+        _text_page(pdf, "planshear report", summary)
+        for key, title in (("stiffness", "Wall stiffness"), ("loads", "Loads"),
+                           ("classification", "Flexibility check"), ("walls", "Wall forces"),
+                           ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
+                           ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
+            headers, rows = tables[key]
+            _text_page(pdf, title, _plain_rows(headers, rows))
+        figures = _figures(doc, results, folder, pdf)
+        _text_page(pdf, "Methods, sources and limitations",
+                   [line for name, text in METHODS_TEXT for line in _wrap(f"{name}: {text}", 110)]
+                   + [""] + [line for text in LIMITATIONS_TEXT for line in _wrap(f"- {text}", 110)]
+                   + [""] + _wrap(CAUTION, 110))
+    written.append("report.pdf")
+    (folder / "report.html").write_text(_html(doc, tables, figures), encoding="utf-8")
+    written.append("report.html")
+    return written
+
+
+def _wrap(text: str, width: int) -> list[str]:
+    import textwrap
+
+    return textwrap.wrap(text, width) or [""]
+
+
+def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
+    def section(title: str, body: str) -> str:
+        return f"<section><h2>{_esc(title)}</h2>{body}</section>"
+
+    def figs(items: list[FigureFile]) -> str:
+        return "".join(f"<figure>{f.svg}<figcaption>{_esc(f.title)}</figcaption></figure>" for f in items)
+
+    def tab(key: str) -> str:
+        headers, rows = tables[key]
+        return _table(headers, rows, key)
+
+    plan = doc["plan"]
+    area_key = next(k for k in plan if k.startswith("area_"))
+    classification = doc.get("classification") or {"directions": {}}
+    verdicts = "".join(f"<li>load along {_esc(a)}: <b>{_esc(c['verdict'])}</b> (governing span {_esc(c['governing_span'])})</li>"
+                       for a, c in classification["directions"].items())
+    notes = "".join(f"<li>{_esc(n)}</li>" for m in doc["assumptions"].values() for n in m.get("notes", []))
+    methods = "".join(f"<dt>{_esc(n)}</dt><dd>{_esc(t)}</dd>" for n, t in METHODS_TEXT)
+    limits = "".join(f"<li>{_esc(t)}</li>" for t in LIMITATIONS_TEXT)
+    parts = [
+        "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\">",
+        f"<title>planshear report: {_esc(plan['name'])}</title><style>{_CSS}</style></head><body>",
+        f"<h1>Diaphragm analysis: {_esc(plan['name'])}</h1>",
+        f'<p class="caution">{_esc(CAUTION)}</p>',
+        section("Project and plan", f"<p>Plan file <code>{_esc(plan['file'])}</code>; diaphragm area "
+                f"{_num(plan[area_key])} {_esc(area_key[5:])}; material: {_esc(plan['material'])}. "
+                f"Load cases: {_esc(', '.join(plan['cases']))}. planshear {__version__}.</p>"),
+        section("Plan drawing", figs(figures["plan"])),
+        section("Materials and wall stiffness", tab("stiffness")),
+        section("Loads", tab("loads")),
+        section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")),
+        section("Wall forces", "<p>Largest magnitude over the cases of each assumption; design = envelope over "
+                "the assumptions the code allows for the load direction.</p>" + tab("walls")),
+        section("Collectors", tab("collectors") + figs(figures["collectors"])),
+        section("Chords", tab("chords") + figs(figures["chords"])),
+        section("Unit shear", tab("unit_shear") + figs(figures["shear"])),
+        section("Deflected shape", figs(figures["deflected"])),
+        section("Equilibrium residuals", tab("residuals")),
+        section("Methods and sources", f"<dl>{methods}</dl>"),
+        section("Assumptions and limitations", f"<ul>{limits}{notes}</ul>"),
+        f'<p class="caution">{_esc(CAUTION)}</p>',
+        "</body></html>",
+    ]
+    return "\n".join(parts)
