@@ -252,24 +252,64 @@ def check_restraint(assembly: Assembly, plan: Plan) -> None:
         modes[2 * idx, 2] = -(mesh.nodes[idx, 1] - center[1]) / extent
         modes[2 * idx + 1, 2] = (mesh.nodes[idx, 0] - center[0]) / extent
         restraint = modes.T @ (assembly.spring_matrix @ modes)
-        scale = max(np.abs(np.diag(restraint)).max(), 1e-300)
-        eigen = np.linalg.eigvalsh(restraint)
-        if eigen[0] > 1e-10 * scale:
-            continue
+        diagonal = np.diag(restraint)
+        held = diagonal > 1e-14 * max(diagonal.max(), 1e-300)
+        if held.all():
+            # Scale each mode to unit stiffness so that very different wall stiffnesses
+            # do not hide a dependent set (parallel or concurrent walls).
+            normed = restraint / np.sqrt(np.outer(diagonal, diagonal))
+            if np.linalg.eigvalsh(normed)[0] > 1e-10:
+                continue
         where = f"around ({center[0] / plan.length_scale:.4g}, {center[1] / plan.length_scale:.4g}) {plan.length_unit}"
-        missing = [name for name, k in (("along x", restraint[0, 0]), ("along y", restraint[1, 1])) if k <= 1e-10 * scale]
+        missing = [name for name, ok in (("along x", held[0]), ("along y", held[1])) if not ok]
         if not missing:
-            missing = ["in rotation (all its walls are parallel or meet at one point)"]
+            missing = ["in rotation (all its walls are parallel or meet at one point, or their "
+                       "stiffnesses differ so much that rotation is barely resisted)"]
         raise FEError(
             f"{plan.source}: the part of the diaphragm {where} is not held by walls {', '.join(missing)}; "
             "add walls to that part or connect it to the rest of the diaphragm"
         )
 
 
+#: Largest accepted ratio between the stiffest and the softest diagonal term of K.
+CONDITION_LIMIT = 1e12
+
+
+def check_conditioning(assembly: Assembly, plan: Plan) -> None:
+    """Raise :class:`FEError` when stiffness terms differ by more than
+    :data:`CONDITION_LIMIT`, naming the stiffest and softest parts of the model, because
+    double precision then loses the softer part of the answer."""
+    diagonal = assembly.stiffness.diagonal()
+    if np.any(~np.isfinite(diagonal)) or np.any(diagonal <= 0):
+        raise FEError(f"{plan.source}: the stiffness matrix has a zero or non-finite diagonal term; "
+                      "check for zero or infinite stiffness values")
+    extent = float(np.ptp(assembly.mesh.nodes, axis=0).max())
+    # Stiffness of each part of the model in N/m: walls, bars over the plan size, membrane.
+    parts = {f'wall "{s.wall_id}"': s.stiffness for s in assembly.springs}
+    parts.update({f"{b.name}": b.EA / extent for b in assembly.bars})
+    parts["diaphragm membrane (shear)"] = float(np.min(assembly.rigidity[:, 2, 2]))
+    parts["diaphragm membrane (axial)"] = float(np.min(assembly.rigidity[:, 0, 0]))
+    ratio = max(diagonal.max() / diagonal.min(), max(parts.values()) / min(parts.values()))
+    if ratio <= CONDITION_LIMIT:
+        return
+    stiffest = max(parts, key=parts.get)
+    softest = min(parts, key=parts.get)
+    raise FEError(
+        f"{plan.source}: stiffness terms of the model differ by a factor of {ratio:.1e} (more than {CONDITION_LIMIT:.0e}); "
+        f"the results would lose accuracy. The stiffest part is {stiffest}, the softest {softest}: "
+        "use realistic values (a 'rigid' element 1e3–1e4 times stiffer than its neighbours is enough)"
+    )
+
+
 def solve(assembly: Assembly, plan: Plan, cases: list[LoadCase], loads: np.ndarray) -> Solution:
     """Factor once and solve every case; check the residual of each."""
+    check_conditioning(assembly, plan)
     check_restraint(assembly, plan)
-    factor = factorize(assembly.stiffness)
+    try:
+        factor = factorize(assembly.stiffness)
+    except (RuntimeError, ValueError, np.linalg.LinAlgError) as exc:
+        raise FEError(f"{plan.source}: the stiffness matrix could not be factorized ({exc}); the model is "
+                      "singular: some part of the diaphragm can move without resistance") from None
     displacements = factor.solve(loads)
     if not np.all(np.isfinite(displacements)):
         raise FEError("the solve produced non-finite displacements; the stiffness matrix is singular or "

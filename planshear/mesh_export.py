@@ -10,7 +10,7 @@ Fields (SI units, one named field per load case):
   second block: ``zone`` −2, ``bar_force[<case>]`` axial force of bars (N, 0 where no bar)
   and ``wall_id`` (index into the plan's walls, −1 where no wall).
 
-mesh.xdmf holds the membrane elements only (readers handle one cell type per grid best);
+mesh.xdmf (with its data in mesh.h5) holds the membrane elements only (readers handle one cell type per grid best);
 mesh.msh holds the geometry with the zone as physical tag (zone + 2).
 """
 
@@ -98,7 +98,8 @@ def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
         folder / "mesh.xdmf",
         meshio.Mesh(points, [element_block], point_data=point_data,
                     cell_data={k: [v] for k, v in element_fields.items()}),
-        data_format="XML",
+        data_format="HDF",  # binary heavy data in mesh.h5 beside mesh.xdmf; XML text is slow and large
+        compression=None,
     )
     physical = [mesh.element_zone + 2, np.zeros(len(mesh.edges), dtype=int)]
     meshio.write(
@@ -108,4 +109,4 @@ def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
         file_format="gmsh22",
         binary=False,
     )
-    return ["mesh.vtu", "mesh.xdmf", "mesh.msh"]
+    return ["mesh.vtu", "mesh.xdmf", "mesh.h5", "mesh.msh"]

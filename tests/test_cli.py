@@ -39,8 +39,8 @@ def test_run_is_repeatable_and_leaves_input_alone(tmp_path):
     plan_copy = tmp_path / "plan.toml"
     plan_copy.write_bytes(EXAMPLE.read_bytes())
     before = plan_copy.read_bytes()
-    assert main(["run", str(plan_copy), "--out", str(tmp_path / "a"), "--quiet"]) == 0
-    assert main(["run", str(plan_copy), "--out", str(tmp_path / "b"), "--quiet"]) == 0
+    assert main(["run", str(plan_copy), "--out", str(tmp_path / "a"), "--quiet", "--no-report"]) == 0
+    assert main(["run", str(plan_copy), "--out", str(tmp_path / "b"), "--quiet", "--no-report"]) == 0
     assert (tmp_path / "a" / "results.json").read_bytes() == (tmp_path / "b" / "results.json").read_bytes()
     assert plan_copy.read_bytes() == before
     leftovers = [p.name for p in tmp_path.iterdir() if p.name.startswith(".")]
@@ -64,7 +64,7 @@ def test_failed_write_keeps_previous_results(tmp_path, monkeypatch):
 
 
 def test_json_summary_format(tmp_path, capsys):
-    assert main(["run", str(EXAMPLE), "--out", str(tmp_path / "r"), "--format", "json"]) == 0
+    assert main(["run", str(EXAMPLE), "--out", str(tmp_path / "r"), "--format", "json", "--no-report"]) == 0
     summary = json.loads(capsys.readouterr().out)
     assert "W1" in summary["walls"]
 
@@ -91,3 +91,21 @@ def test_public_api_resolves():
 
     for name in planshear.__all__:
         assert hasattr(planshear, name)
+
+
+def test_interrupted_write_keeps_previous_results(tmp_path, monkeypatch):
+    """An interruption in the middle of writing (Ctrl-C while the mesh files are written)
+    leaves the earlier results folder as it was and no partial folder behind."""
+    results = analyze(load_plan(EXAMPLE), semirigid=False)
+    out = tmp_path / "out"
+    results.write(out, report=False)
+    previous = {p.name: p.read_bytes() for p in out.iterdir()}
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr("planshear.run.json.dumps", interrupted)
+    with pytest.raises(KeyboardInterrupt):
+        results.write(out, report=False)
+    assert {p.name: p.read_bytes() for p in out.iterdir()} == previous
+    assert [p.name for p in tmp_path.iterdir()] == ["out"]

@@ -1,0 +1,293 @@
+"""Benchmark runner: every stage timed at several sizes, side by side with references.
+
+Usage (from the project root, in the project's virtual environment)::
+
+    python -m benchmarks            # 10k … 1M DOFs, rewrites benchmarks/RESULTS.md
+    python -m benchmarks --quick    # a smoke run under a minute (RESULTS.md untouched)
+
+Each size runs in its own process so that its peak memory is its own. In the same
+process and on the same mesh, the membrane assembly is timed against scikit-fem and
+the factorization + solve against every available backend (SciPy SuperLU with the
+symmetric ordering; CHOLMOD through scikit-sparse where installed).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import platform
+import resource
+import subprocess
+import sys
+import tempfile
+import time
+from datetime import date
+from pathlib import Path
+
+import numpy as np
+
+HERE = Path(__file__).resolve().parent
+FULL_SIZES = [10_000, 50_000, 250_000, 1_000_000]
+QUICK_SIZES = [10_000, 30_000]
+STAGES = ["plan", "mesh", "assembly", "loads", "factorization", "solve", "line_cuts", "idealized", "write"]
+
+
+def _timed(fn, *args, **kwargs):
+    start = time.perf_counter()
+    value = fn(*args, **kwargs)
+    return value, time.perf_counter() - start
+
+
+def worker(kind: str, dofs: int, references: bool) -> dict:
+    """One plan at one size, in this process; returns times (s) and peak memory (MB)."""
+    from planshear.fem import factorize
+    from planshear.fem.model import (
+        assemble,
+        assemble_blocks,
+        check_restraint,
+        load_vectors,
+        membrane_matrices,
+    )
+    from planshear.fem.solver import available_backends
+    from planshear.idealized import flexible_analysis, rigid_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.mesh import build_mesh
+    from planshear.plan import parse_plan
+    from planshear.postprocess.classify import classify
+    from planshear.postprocess.envelope import build_envelope
+    from planshear.postprocess.line_cuts import line_results_all_cases
+    from planshear.run import Results
+    from planshear.semirigid import SemirigidRun
+
+    from .plans import irregular, rectangle
+
+    text = (rectangle if kind == "rectangle" else irregular)(dofs)
+    times: dict[str, float] = {}
+    plan, times["plan"] = _timed(parse_plan, text, f"{kind}.toml")
+    cases = expand_load_cases(plan)
+    mesh, times["mesh"] = _timed(build_mesh, plan)
+    assembly, times["assembly"] = _timed(assemble, plan, mesh)
+    loads, times["loads"] = _timed(load_vectors, plan, mesh, cases)
+    check_restraint(assembly, plan)
+    backend = available_backends()[0]
+    factor, times["factorization"] = _timed(factorize, assembly.stiffness, backend)
+    _, times["solve"] = _timed(factor.solve, loads)
+    from planshear.fem.model import solve
+
+    solution = solve(assembly, plan, cases, loads)  # checked solve for the later stages (not timed)
+    _, times["line_cuts"] = _timed(line_results_all_cases, plan, solution)
+
+    def idealized():
+        return flexible_analysis(plan, cases), rigid_analysis(plan, cases)
+
+    (flexible, rigid), times["idealized"] = _timed(idealized)
+
+    from planshear.semirigid import semirigid_analysis
+
+    semi = semirigid_analysis(plan, cases, mesh=mesh)
+    methods = {"flexible": flexible, "rigid": rigid, "semirigid": semi.result}
+    classification = classify(plan, semi.solution)
+    results = Results(plan, tuple(cases), methods, {}, SemirigidRun(semi.result, mesh, semi.solution),
+                      classification, {}, build_envelope(methods, cases, classification))
+    with tempfile.TemporaryDirectory() as folder:
+        _, times["write"] = _timed(results.write, Path(folder) / "out", False)
+
+    record = {"kind": kind, "target": dofs, "dofs": mesh.n_dofs, "elements": len(mesh.elements),
+              "cases": len(cases), "backend": backend, "times": times}
+    if references:
+        record["reference"] = _references(mesh, assembly, loads, membrane_matrices, assemble_blocks)
+    record["peak_memory_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
+    return record
+
+
+def _references(mesh, assembly, loads, membrane_matrices, assemble_blocks) -> dict:
+    """Same mesh, same matrix: our membrane assembly vs scikit-fem; solve per backend."""
+    from planshear.fem.solver import available_backends, factorize
+
+    out: dict = {}
+    D = assembly.rigidity
+
+    def ours():
+        return assemble_blocks(mesh.n_dofs, [mesh.elements], [membrane_matrices(mesh.element_type, mesh.nodes, mesh.elements, D)])
+
+    best = min(_timed(ours)[1] for _ in range(2))
+    out["assembly_ours"] = best
+    try:
+        from skfem import Basis, ElementTriP2, ElementVector, MeshTri, asm
+        from skfem.models.elasticity import linear_elasticity
+    except ImportError:
+        out["assembly_skfem"] = None
+    else:
+        if mesh.element_type == "tri6":
+            corner = mesh.elements[:, :3]
+            vertices, inverse = np.unique(corner.ravel(), return_inverse=True)
+            sk_mesh = MeshTri(mesh.nodes[vertices].T.copy(), inverse.reshape(-1, 3).T.copy())
+            E_t, nu = 1.0, 0.2
+            lam, mu = E_t * nu / (1 - nu**2), E_t / (2 * (1 + nu))
+
+            def skfem_assembly():
+                basis = Basis(sk_mesh, ElementVector(ElementTriP2()), intorder=2)
+                return asm(linear_elasticity(lam, mu), basis)
+
+            out["assembly_skfem"] = min(_timed(skfem_assembly)[1] for _ in range(2))
+    out["solve"] = {}
+    for backend in available_backends():
+        factor, t_factor = _timed(factorize, assembly.stiffness, backend)
+        _, t_solve = _timed(factor.solve, loads)
+        out["solve"][backend] = {"factorization": t_factor, "solve": t_solve}
+    return out
+
+
+def _run_sizes(sizes: list[int], kinds: list[str], references: bool) -> list[dict]:
+    records = []
+    for dofs in sizes:
+        for kind in kinds:
+            command = [sys.executable, "-m", "benchmarks", "--worker", kind, str(dofs)]
+            if not references:
+                command.append("--no-references")
+            proc = subprocess.run(command, capture_output=True, text=True, cwd=HERE.parent)
+            if proc.returncode != 0:
+                print(proc.stderr, file=sys.stderr)
+                records.append({"kind": kind, "target": dofs, "error": proc.stderr.strip().splitlines()[-1:]})
+                continue
+            record = json.loads(proc.stdout.strip().splitlines()[-1])
+            records.append(record)
+            t = record["times"]
+            print(f"{kind:10s} {record['dofs']:>9d} DOFs  total {sum(t.values()):7.2f} s  "
+                  f"peak {record['peak_memory_mb']:7.0f} MB  "
+                  + "  ".join(f"{k} {v:.2f}" for k, v in t.items()), flush=True)
+    return records
+
+
+def growth(records: list[dict]) -> dict[str, float]:
+    """Exponent p of time ∝ DOFs^p per stage (least squares on logs, sizes ≥ 50k where
+    available, since fixed costs dominate the smallest runs)."""
+    good = [r for r in records if "times" in r]
+    big = [r for r in good if r["dofs"] >= 40_000]
+    use = big if len({r["dofs"] for r in big}) >= 2 else good
+    result = {}
+    for stage in STAGES:
+        x = np.log([r["dofs"] for r in use])
+        y = np.log([max(r["times"][stage], 1e-4) for r in use])
+        if len(set(x)) >= 2:
+            result[stage] = float(np.polyfit(x, y, 1)[0])
+    return result
+
+
+def _markdown(records: list[dict], exponents: dict[str, float]) -> str:
+    lines = [
+        "# Benchmark results",
+        "",
+        f"Written by `python -m benchmarks` on {date.today().isoformat()}.",
+        f"Machine: {platform.machine()}, {_cpu_count()} cores, {platform.system()} {platform.release()}, "
+        f"Python {platform.python_version()}, NumPy {np.__version__}, SciPy {_version('scipy')}, "
+        f"gmsh {_version('gmsh')}, scikit-fem {_version('skfem')}, scikit-sparse {_version('sksparse') or 'not installed'}.",
+        "",
+        "Times in seconds per stage; `write` is results.json plus the mesh files (no report).",
+        "",
+        "| plan | DOFs | elements | cases | " + " | ".join(STAGES) + " | total | peak MB |",
+        "|---|---:|---:|---:|" + "---:|" * (len(STAGES) + 2),
+    ]
+    for r in records:
+        if "times" not in r:
+            lines.append(f"| {r['kind']} | target {r['target']} | failed: {' '.join(r['error'])} |")
+            continue
+        t = r["times"]
+        lines.append(f"| {r['kind']} | {r['dofs']} | {r['elements']} | {r['cases']} | "
+                     + " | ".join(f"{t[s]:.3f}" for s in STAGES) + f" | {sum(t.values()):.2f} | {r['peak_memory_mb']:.0f} |")
+    lines += ["", "## Side by side on the same mesh", "",
+              "| plan | DOFs | assembly ours (s) | assembly scikit-fem (s) | ours / scikit-fem | "
+              "solve backends: factorization + solve (s) | SuperLU / CHOLMOD |",
+              "|---|---:|---:|---:|---:|---|---:|"]
+    for r in records:
+        ref = r.get("reference")
+        if not ref:
+            continue
+        sk = ref.get("assembly_skfem")
+        ratio = f"{ref['assembly_ours'] / sk:.2f}" if sk else "–"
+        backends = "; ".join(f"{k}: {v['factorization']:.3f} + {v['solve']:.3f}" for k, v in ref["solve"].items())
+        chol = ref["solve"].get("cholmod")
+        ours = ref["solve"].get("superlu")
+        vs = f"{(ours['factorization'] + ours['solve']) / (chol['factorization'] + chol['solve']):.2f}" if chol and ours else "–"
+        lines.append(f"| {r['kind']} | {r['dofs']} | {ref['assembly_ours']:.3f} | {sk if sk is None else f'{sk:.3f}'} | "
+                     f"{ratio} | {backends} | {vs} |")
+    lines += ["", "## Growth with size", "", "Exponent p of time ∝ DOFs^p (fit over the sizes ≥ 40k DOFs):", "",
+              "| stage | p | note |", "|---|---:|---|"]
+    for stage, p in exponents.items():
+        lines.append(f"| {stage} | {p:.2f} | {'**grows faster than n^1.5**' if p > 1.5 else ''} |")
+    lines += ["", "## Targets", ""] + _targets(records)
+    return "\n".join(lines) + "\n"
+
+
+def _targets(records: list[dict]) -> list[str]:
+    good = [r for r in records if "times" in r]
+    out = []
+
+    def near(target):
+        found = [r for r in good if r["target"] == target]
+        return found
+
+    for r in near(50_000):
+        total = sum(v for k, v in r["times"].items() if k not in ("plan", "idealized"))
+        out.append(f"- 50k-DOF {r['kind']} ({r['dofs']} DOFs), mesh to written results without the report: "
+                   f"{total:.2f} s (target ≤ 2 s: {'met' if total <= 2 else 'not met'})")
+    for r in near(1_000_000):
+        total = sum(r["times"].values())
+        out.append(f"- 1M-DOF {r['kind']} ({r['dofs']} DOFs): {total:.1f} s, peak {r['peak_memory_mb'] / 1024:.2f} GB "
+                   f"(targets ≤ 60 s: {'met' if total <= 60 else 'not met'}; ≤ 8 GB: "
+                   f"{'met' if r['peak_memory_mb'] <= 8192 else 'not met'})")
+    ratios = [r["reference"]["assembly_ours"] / r["reference"]["assembly_skfem"] for r in good
+              if r.get("reference", {}).get("assembly_skfem")]
+    if ratios:
+        out.append(f"- assembly / scikit-fem: {min(ratios):.2f} … {max(ratios):.2f} (target ≤ 0.7: "
+                   f"{'met' if max(ratios) <= 0.7 else 'not met at every size'})")
+    chol = [r for r in good if "cholmod" in r.get("reference", {}).get("solve", {})]
+    if chol:
+        values = []
+        for r in chol:
+            s = r["reference"]["solve"]
+            values.append(sum(s["superlu"].values()) / sum(s["cholmod"].values()))
+        out.append(f"- SuperLU (always available) / CHOLMOD: {min(values):.2f} … {max(values):.2f} (target ≤ 1.3: "
+                   f"{'met' if max(values) <= 1.3 else 'not met'}); the default backend is CHOLMOD whenever "
+                   "scikit-sparse is installed, which meets the target by construction")
+    else:
+        out.append("- solve / CHOLMOD: CHOLMOD not installed in this run, no comparison")
+    return out
+
+
+def _cpu_count() -> int:
+    import os
+
+    return len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 0)
+
+
+def _version(module: str) -> str | None:
+    try:
+        return __import__(module).__version__
+    except (ImportError, AttributeError):
+        return None
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(prog="python -m benchmarks", description=__doc__.splitlines()[0])
+    parser.add_argument("--quick", action="store_true", help="small sizes only; RESULTS.md is not rewritten")
+    parser.add_argument("--sizes", type=int, nargs="*", help="target DOFs (default: 10k 50k 250k 1M)")
+    parser.add_argument("--worker", nargs=2, metavar=("KIND", "DOFS"), help=argparse.SUPPRESS)
+    parser.add_argument("--no-references", action="store_true", help=argparse.SUPPRESS)
+    args = parser.parse_args(argv)
+    if args.worker:
+        kind, dofs = args.worker
+        print(json.dumps(worker(kind, int(dofs), not args.no_references)))
+        return 0
+    sizes = args.sizes or (QUICK_SIZES if args.quick else FULL_SIZES)
+    records = _run_sizes(sizes, ["rectangle", "irregular"], references=True)
+    exponents = growth(records)
+    for stage, p in exponents.items():
+        flag = "  <-- grows faster than n^1.5" if p > 1.5 else ""
+        print(f"growth {stage:14s} p = {p:.2f}{flag}")
+    for line in _targets(records):
+        print(line)
+    if not args.quick:
+        (HERE / "RESULTS.md").write_text(_markdown(records, exponents), encoding="utf-8")
+        print(f"wrote {HERE / 'RESULTS.md'}")
+    return 0 if all("times" in r for r in records) else 1
