@@ -48,7 +48,7 @@ def worker(kind: str, dofs: int, references: bool) -> dict:
         load_vectors,
         membrane_matrices,
     )
-    from planshear.fem.solver import available_backends
+    from planshear.fem.solver import choose_backend
     from planshear.idealized import flexible_analysis, rigid_analysis
     from planshear.loads import expand_load_cases
     from planshear.mesh import build_mesh
@@ -69,7 +69,7 @@ def worker(kind: str, dofs: int, references: bool) -> dict:
     assembly, times["assembly"] = _timed(assemble, plan, mesh)
     loads, times["loads"] = _timed(load_vectors, plan, mesh, cases)
     check_restraint(assembly, plan)
-    backend = available_backends()[0]
+    backend = choose_backend(assembly.stiffness.shape[0])
     factor, times["factorization"] = _timed(factorize, assembly.stiffness, backend)
     _, times["solve"] = _timed(factor.solve, loads)
     from planshear.fem.model import solve
@@ -271,7 +271,8 @@ def _version(module: str) -> str | None:
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m benchmarks", description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="small sizes only; RESULTS.md is not rewritten")
-    parser.add_argument("--sizes", type=int, nargs="*", help="target DOFs (default: 10k 50k 250k 1M)")
+    parser.add_argument("--sizes", type=int, nargs="*",
+                        help="target DOFs (default: 10k 50k 250k 1M); RESULTS.md is rewritten only for the default")
     parser.add_argument("--worker", nargs=2, metavar=("KIND", "DOFS"), help=argparse.SUPPRESS)
     parser.add_argument("--no-references", action="store_true", help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
@@ -281,13 +282,13 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     sizes = args.sizes or (QUICK_SIZES if args.quick else FULL_SIZES)
     records = _run_sizes(sizes, ["rectangle", "irregular"], references=True)
-    exponents = growth(records)
+    exponents = growth(records) if len(sizes) >= 2 else {}
     for stage, p in exponents.items():
         flag = "  <-- grows faster than n^1.5" if p > 1.5 else ""
         print(f"growth {stage:14s} p = {p:.2f}{flag}")
     for line in _targets(records):
         print(line)
-    if not args.quick:
+    if not args.quick and not args.sizes:
         (HERE / "RESULTS.md").write_text(_markdown(records, exponents), encoding="utf-8")
         print(f"wrote {HERE / 'RESULTS.md'}")
     return 0 if all("times" in r for r in records) else 1

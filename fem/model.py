@@ -106,15 +106,23 @@ def element_rigidities(plan: Plan, mesh: Mesh, factor: float = 1.0) -> np.ndarra
     return D * factor
 
 
-def _triplets(dofs: np.ndarray, blocks: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """COO (rows, cols, values) of element blocks (m, d, d) with DOFs (m, d)."""
-    rows = np.repeat(dofs, dofs.shape[1], axis=1).ravel()
-    cols = np.tile(dofs, (1, dofs.shape[1])).ravel()
-    return rows, cols, blocks.ravel()
-
-
-def _coo_to_csr(triplets: list[tuple[np.ndarray, np.ndarray, np.ndarray]], n: int) -> sp.csr_matrix:
-    rows, cols, values = (np.concatenate(parts) for parts in zip(*triplets, strict=True))
+def _coo_to_csr(blocks: list[tuple[np.ndarray, np.ndarray]], n: int) -> sp.csr_matrix:
+    """One COO → CSR assembly of element blocks: each item is (DOFs (m, d), matrices
+    (m, d, d)). The COO arrays are allocated once and filled in place (32-bit indices
+    where they fit), because copies of these arrays dominate the cost on large meshes."""
+    total = sum(b.size for _, b in blocks)
+    index_type = np.int32 if n < 2**31 - 1 else np.int64
+    rows = np.empty(total, dtype=index_type)
+    cols = np.empty(total, dtype=index_type)
+    values = np.empty(total)
+    start = 0
+    for dofs, matrices in blocks:
+        m, d = dofs.shape
+        stop = start + m * d * d
+        rows[start:stop].reshape(m, d, d)[...] = dofs[:, :, None]
+        cols[start:stop].reshape(m, d, d)[...] = dofs[:, None, :]
+        values[start:stop] = matrices.reshape(-1)
+        start = stop
     return sp.coo_matrix((values, (rows, cols)), shape=(n, n)).tocsr()
 
 
@@ -129,7 +137,7 @@ def membrane_matrices(element_type: str, nodes: np.ndarray, elements: np.ndarray
 
 def assemble_blocks(n_dofs: int, connectivities: list[np.ndarray], blocks: list[np.ndarray]) -> sp.csr_matrix:
     """One COO → CSR assembly of element blocks (m, d, d) with node connectivities (m, d/2)."""
-    return _coo_to_csr([_triplets(element_dofs(c), b) for c, b in zip(connectivities, blocks, strict=True)], n_dofs)
+    return _coo_to_csr([(element_dofs(c), b) for c, b in zip(connectivities, blocks, strict=True)], n_dofs)
 
 
 def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
@@ -158,11 +166,10 @@ def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
         k_per_length = np.full(len(line_mesh.edges), wall.k / line_mesh.length)
         springs.append(SpringGroup(wall.id, line_mesh.edges, wall.direction,
                                    wall.k, line_spring_stiffness(xy, k_per_length, direction)))
-    spring_triplets = [_triplets(element_dofs(s.edges), s.matrices) for s in springs]
-    spring_matrix = _coo_to_csr(spring_triplets, n)
+    spring_blocks = [(element_dofs(s.edges), s.matrices) for s in springs]
+    spring_matrix = _coo_to_csr(spring_blocks, n)
     # One COO → CSR conversion for membrane, bars and springs together.
-    triplets = [_triplets(d, b) for d, b in zip(dofs, blocks, strict=True)] + spring_triplets
-    stiffness = _coo_to_csr(triplets, n)
+    stiffness = _coo_to_csr(list(zip(dofs, blocks, strict=True)) + spring_blocks, n)
     return Assembly(mesh, stiffness, D, element_matrices, tuple(bars), tuple(springs), spring_matrix)
 
 

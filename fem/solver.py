@@ -11,7 +11,11 @@ import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
-__all__ = ["Factor", "factorize", "available_backends"]
+__all__ = ["Factor", "factorize", "available_backends", "choose_backend"]
+
+#: Above this many unknowns CHOLMOD (when installed) factors faster than SuperLU on these
+#: matrices; below it SuperLU is as fast or faster (benchmarks/RESULTS.md).
+CHOLMOD_FROM = 150_000
 
 
 @dataclass
@@ -36,12 +40,18 @@ def available_backends() -> list[str]:
     return names
 
 
+def choose_backend(n_dofs: int) -> str:
+    """The faster available backend for a matrix of this size."""
+    backends = available_backends()
+    return "cholmod" if "cholmod" in backends and n_dofs >= CHOLMOD_FROM else "superlu"
+
+
 def factorize(matrix: sp.spmatrix, backend: str | None = None) -> Factor:
     """Factor a symmetric positive definite matrix once for any number of solves.
 
     SuperLU runs with the symmetric minimum-degree ordering on A + Aᵀ and no pivoting
     threshold (the natural `MMD_ATA` ordering is far slower on these matrices)."""
-    backend = backend or available_backends()[0]
+    backend = backend or choose_backend(matrix.shape[0])
     if backend == "cholmod":
         from sksparse.cholmod import cholesky
 

@@ -91,8 +91,11 @@ def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
         if key not in cell_data:
             cell_data[key] = [np.zeros((len(mesh.elements),) + value.shape[1:]), value]
     cell_data["wall_id"] = [np.full(len(mesh.elements), -1.0), wall_index.astype(float)]
-    meshio.Mesh(points, [element_block, edge_block], point_data=point_data, cell_data=cell_data).write(
-        folder / "mesh.vtu"
+    meshio.vtu.write(
+        folder / "mesh.vtu",
+        meshio.Mesh(points, [element_block, edge_block], point_data=point_data, cell_data=cell_data),
+        binary=True,
+        compression=None,  # zlib costs more time than the disk space it saves
     )
     meshio.write(
         folder / "mesh.xdmf",
@@ -107,6 +110,6 @@ def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
         meshio.Mesh(points, [element_block, edge_block],
                     cell_data={"gmsh:physical": physical, "gmsh:geometrical": [p.copy() for p in physical]}),
         file_format="gmsh22",
-        binary=False,
+        binary=True,
     )
     return ["mesh.vtu", "mesh.xdmf", "mesh.h5", "mesh.msh"]
