@@ -7,8 +7,10 @@ Fields (SI units, one named field per load case):
   ``N_principal[<case>]``: principal membrane forces N1 ≥ N2 (N/m),
   ``unit_shear[<case>]``: |Nxy| (N/m); ``zone``: −1 main material, else zone index;
 * in mesh.vtu only, the line elements (outline, grid lines, walls, members) form a
-  second block: ``zone`` −2, ``bar_force[<case>]`` axial force of bars (N, 0 where no bar)
-  and ``wall_id`` (index into the plan's walls, −1 where no wall).
+  second block: ``zone`` −2, ``bar_force[<case>]`` axial force of bars (N, 0 where no bar),
+  ``wall_force[<case>]`` force the wall spring takes on that edge (N, along the wall; the
+  edges of a wall add up to the wall force) and ``wall_id`` (index into the plan's walls,
+  −1 where no wall).
 
 mesh.xdmf (with its data in mesh.h5) holds the membrane elements only (readers handle one cell type per grid best);
 mesh.msh holds the geometry with the zone as physical tag (zone + 2).
@@ -48,13 +50,17 @@ def _edge_fields(plan: Plan, solution: Solution) -> tuple[np.ndarray, np.ndarray
             if index is not None:
                 force[index] += axial[row]
     wall_index = np.full(len(mesh.edges), -1)
+    spring_force = np.zeros((len(mesh.edges), n_cases))
     ids = {w.id: i for i, w in enumerate(plan.walls)}
     for spring in solution.assembly.springs:
-        for edge in spring.edges:
+        f = np.einsum("mij,mjc->mic", spring.matrices, solution.displacements[element_dofs(spring.edges)])
+        along = np.einsum("mndc,d->mc", f.reshape(len(spring.edges), -1, 2, n_cases), spring.direction)
+        for row, edge in enumerate(spring.edges):
             index = key.get(tuple(sorted(map(int, edge[:2]))))
             if index is not None:
                 wall_index[index] = ids[spring.wall_id]
-    return force, wall_index
+                spring_force[index] = along[row]
+    return force, wall_index, spring_force
 
 
 def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
@@ -74,10 +80,11 @@ def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
         element_fields[f"N[{name}]"] = membrane[:, :, j]
         element_fields[f"N_principal[{name}]"] = np.column_stack([mean[:, j] + radius[:, j], mean[:, j] - radius[:, j]])
         element_fields[f"unit_shear[{name}]"] = np.abs(membrane[:, 2, j])
-    edge_force, wall_index = _edge_fields(plan, solution)
+    edge_force, wall_index, spring_force = _edge_fields(plan, solution)
     edge_fields = {"zone": np.full(len(mesh.edges), -2.0)}
     for j, name in enumerate(names):
         edge_fields[f"bar_force[{name}]"] = edge_force[:, j]
+        edge_fields[f"wall_force[{name}]"] = spring_force[:, j]
 
     element_block = (MESHIO_CELLS[mesh.element_type], mesh.elements)
     edge_block = (MESHIO_LINES[mesh.edges.shape[1]], mesh.edges)

@@ -116,6 +116,16 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
         ["wall", f"stiffness ({plan['stiffness_unit']})", "formula"],
         [[w, s["k"], s["formula"]] for w, s in plan["wall_stiffness"].items()],
     )
+    tables["materials"] = (
+        ["zone", "kind", f"Et_x ({plan['rigidity_unit']})", f"Et_y ({plan['rigidity_unit']})", "ν",
+         f"Gt ({plan['rigidity_unit']})", "how it was set"],
+        [[m["zone"], m["kind"], m["Et_x"], m["Et_y"], m["nu"], m["Gt"], m["description"]] for m in plan["materials"]],
+    )
+    tables["cases"] = (
+        ["case", "load", "direction", f"force ({f})", f"accidental eccentricity ({p})", "assumptions"],
+        [[c["name"], c["load"], c["direction"], c["force"], c["accidental_eccentricity"], ", ".join(c["assumptions"])]
+         for c in plan["case_details"]],
+    )
     tables["loads"] = (
         ["load", "kind", "directions", f"seismic weight ({f})", f"force x ({f})", f"force y ({f})", "Ω0"],
         [[n, ld["kind"], ", ".join(ld["directions"]), ld.get("seismic_weight"), ld["force"].get("x"),
@@ -322,7 +332,8 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
             *_wrap(CAUTION, 110),
         ]
         _text_page(pdf, "planshear report", summary)
-        for key, title in (("stiffness", "Wall stiffness"), ("loads", "Loads"),
+        for key, title in (("materials", "Materials"), ("stiffness", "Wall stiffness"), ("loads", "Loads"),
+                           ("cases", "Load cases"),
                            ("classification", "Flexibility check"), ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
@@ -361,6 +372,9 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
     classification = doc.get("classification") or {"directions": {}}
     verdicts = "".join(f"<li>load along {_esc(a)}: <b>{_esc(c['verdict'])}</b> (governing span {_esc(c['governing_span'])})</li>"
                        for a, c in classification["directions"].items())
+    if "overall" in classification:
+        overall = classification["overall"]
+        verdicts += f"<li>overall: <b>{_esc(overall['verdict'])}</b>; governing: {_esc(overall['governing'])}</li>"
     notes = "".join(f"<li>{_esc(n)}</li>" for m in doc["assumptions"].values() for n in m.get("notes", []))
     methods = "".join(f"<dt>{_esc(n)}</dt><dd>{_esc(t)}</dd>" for n, t in METHODS_TEXT)
     limits = "".join(f"<li>{_esc(t)}</li>" for t in LIMITATIONS_TEXT)
@@ -373,8 +387,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
                 f"{_num(plan[area_key])} {_esc(area_key[5:])}; material: {_esc(plan['material'])}. "
                 f"Load cases: {_esc(', '.join(plan['cases']))}. planshear {__version__}.</p>"),
         section("Plan drawing", figs(figures["plan"])),
-        section("Materials and wall stiffness", tab("stiffness")),
-        section("Loads", tab("loads")),
+        section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
+        section("Loads and load cases", tab("loads") + tab("cases")),
         section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")),
         section("Wall forces", "<p>Largest magnitude over the cases of each assumption; design = envelope over "
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),

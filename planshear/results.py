@@ -205,6 +205,16 @@ def classification_to_json(classification, units: OutputUnits) -> dict | None:
             ],
             "notes": list(check.notes),
         }
+    governing = [(axis, c.governing) for axis, c in classification.directions.items() if c.governing is not None]
+    if governing:
+        axis, span = min(governing, key=lambda item: item[1].ratio)
+        everywhere = all(classification.flexible_allowed(a) for a in classification.directions)
+        out["overall"] = {
+            "verdict": ("may be idealized as flexible in every direction" if everywhere
+                        else "not flexible in every direction: use the semi-rigid model where flexible is not allowed"),
+            "governing": f"load along {axis}, span {span.left_line}-{span.right_line} ({span.case}), "
+                         f"MDD/ADVE = {span.ratio:.3g}",
+        }
     return out
 
 

@@ -165,8 +165,32 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
         },
         "stiffness_unit": f"{units.force}/{units.displacement}",
         "material": plan.material.description,
+        "materials": [
+            {
+                "zone": name,
+                "kind": m.kind,
+                "Et_x": round(units.line_force_out(m.Et_x) * units.length_factor / units.displacement_factor, 6),
+                "Et_y": round(units.line_force_out(m.Et_y) * units.length_factor / units.displacement_factor, 6),
+                "nu": m.nu,
+                "Gt": round(units.line_force_out(m.Gt) * units.length_factor / units.displacement_factor, 6),
+                "description": m.description,
+            }
+            for name, m in [("main", plan.material)] + [(z.name, z.material) for z in plan.zones]
+        ],
+        "rigidity_unit": f"{units.force}/{units.displacement}",
         "loads": {},
         "cases": [c.name for c in cases],
+        "case_details": [
+            {
+                "name": c.name,
+                "load": c.load,
+                "direction": ("+" if c.sign > 0 else "-") + c.axis,
+                "force": round(units.force_out(c.force), 6),
+                "accidental_eccentricity": round(units.length_out(c.eccentricity * c.eccentricity_sign), 6),
+                "assumptions": list(c.assumptions),
+            }
+            for c in cases
+        ],
     }
     for load in plan.loads:
         entry: dict = {"kind": load.kind, "directions": list(load.directions)}

@@ -267,6 +267,13 @@ def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple]:
                 side_shear=np.column_stack([cut.t, q_left, q_right]),
             )
         chord_results = {name: ChordResult(name, st, val[:, j]) for name, (st, val) in chords.items()}
+        for member in plan.members:
+            if member.role != "chord" or member.line not in cuts:
+                continue
+            cut = cuts[member.line]
+            inside = (cut.stations >= member.t_from - 1e-9) & (cut.stations <= member.t_to + 1e-9)
+            name = f"chord on {member.line}"
+            chord_results[name] = ChordResult(name, cut.stations[inside] - member.t_from, cut.bar_force[inside, j])
         shear = np.abs(membrane[:, 2, j])
         k = int(np.argmax(shear))
         by_zone = {}

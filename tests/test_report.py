@@ -85,6 +85,10 @@ def test_report_tables_equal_results_json(package):
     assert len(rows) == len(spans)
     for row, span in zip(rows, spans, strict=True):
         assert row[3] == f"{span['MDD']:.6g}" and row[5] == f"{span['ratio']:.6g}"
+    materials = parser.tables["materials"]
+    for row, material in zip(materials[1:], doc["plan"]["materials"], strict=True):
+        assert row[0] == material["zone"] and row[5] == f"{material['Gt']:.6g}"
+    assert [r[0] for r in parser.tables["cases"][1:]] == doc["plan"]["cases"]
     for row in parser.tables["collectors"][1:]:
         assert row[1] == f"{doc['envelope']['collectors'][row[0]]['design']['value']:.6g}"
 

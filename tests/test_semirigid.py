@@ -206,3 +206,16 @@ def test_unrestrained_model_is_explained(plan_from):
     no_springs = replace(assembly, spring_matrix=sp.csr_matrix(assembly.spring_matrix.shape))
     with pytest.raises(FEError, match="not held by walls along x, along y"):
         check_restraint(no_springs, plan)
+
+
+def test_interior_chord_member_is_reported(plan_from):
+    """A chord member inside the plan gets its own chord diagram (bar force) that closes."""
+    walls = wall("W1", "1", 0, 50, "50 kip/in") + wall("W2", "2", 0, 50, "50 kip/in") \
+        + wall("WA", "A", 0, 100, "50 kip/in") + wall("WB", "B", 0, 100, "50 kip/in")
+    member = '\n[[member]]\nrole = "chord"\nline = "M"\nEA = "20000 kip"\n'
+    text = box(walls=walls + member).replace('y = { "A" = 0, "B" = 50 }', 'y = { "A" = 0, "M" = 25, "B" = 50 }')
+    plan = plan_from(text)
+    case = semirigid_analysis(plan, expand_load_cases(plan)).result.cases["E+y"]
+    chord = case.chords["chord on M"]
+    assert chord.stations[0] == pytest.approx(0.0) and chord.stations[-1] / FT == pytest.approx(100.0)
+    assert abs(case.lines["M"].residual) < 1e-8 * case.applied_force
