@@ -224,7 +224,27 @@ def _markdown(records: list[dict], exponents: dict[str, float]) -> str:
     for stage, p in exponents.items():
         lines.append(f"| {stage} | {p:.2f} | {'**grows faster than n^1.5**' if p > 1.5 else ''} |")
     lines += ["", "## Targets", ""] + _targets(records)
+    lines += ["", "## Where the time goes", ""] + _bottlenecks(records)
     return "\n".join(lines) + "\n"
+
+
+def _bottlenecks(records: list[dict]) -> list[str]:
+    """Share of each stage at the largest size of each plan."""
+    out = []
+    for kind in ("rectangle", "irregular"):
+        runs = [r for r in records if r.get("kind") == kind and "times" in r]
+        if not runs:
+            continue
+        largest = max(runs, key=lambda r: r["dofs"])
+        total = sum(largest["times"].values())
+        shares = sorted(largest["times"].items(), key=lambda item: -item[1])[:3]
+        out.append(f"- {kind}, {largest['dofs']} DOFs: " + ", ".join(f"{k} {100 * v / total:.0f} %" for k, v in shares)
+                   + f" of {total:.1f} s")
+    out.append("- The sparse factorization dominates at every size above ~50k DOFs and grows fastest; SciPy's "
+               "SuperLU has no nested-dissection ordering, which is what makes CHOLMOD faster on the largest "
+               "meshes. Meshing (gmsh) is the next largest stage; assembly, loads, line cuts and writing grow "
+               "about linearly.")
+    return out
 
 
 def _targets(records: list[dict]) -> list[str]:

@@ -4,7 +4,6 @@ import textwrap
 
 import numpy as np
 import pytest
-from test_semirigid import box, wall
 
 from planshear.idealized import flexible_analysis
 from planshear.loads import expand_load_cases
@@ -13,6 +12,7 @@ from planshear.run import analyze
 from planshear.semirigid import semirigid_analysis
 
 from conftest import FT, INCH, KIP
+from test_semirigid import box, centred_wall_plan, wall
 
 
 def test_mdd_matches_sdpws_deflection(plan_from):
@@ -65,19 +65,7 @@ def test_collector_diagram_approaches_beam_analogy(plan_from):
     (statics; VALIDATION.md 6.6 gives the 15-k peak). Along the wall itself the two differ by
     design: the beam analogy spreads the wall reaction uniformly, while a stiff wall under a
     stiff collector takes more near its ends."""
-    walls = wall("W1", "1", 15, 35, "1e6 kip/in") + wall("W2", "2", 0, 50, "1e6 kip/in") \
-        + wall("WA", "A", 40, 60, "50 kip/in") + wall("WB", "B", 40, 60, "50 kip/in")
-    member = '\n[[member]]\nrole = "collector"\nline = "1"\nEA = "1e7 kip"\n'
-    load = textwrap.dedent('''
-        [[load]]
-        name = "E"
-        kind = "seismic"
-        area_weight = "20 psf"
-        total = "100 kip"
-        directions = ["y"]
-        eccentricity = 0
-        ''')
-    plan = plan_from(box(walls=walls + member, load=load, mesh_size=2.5, chord_EA="1e6 kip"))
+    plan = plan_from(centred_wall_plan("1e6 kip/in", "1e7 kip"))
     cases = expand_load_cases(plan)
     fe = semirigid_analysis(plan, cases).result.cases["E+y"].lines["1"]
     beam = flexible_analysis(plan, cases).cases["E+y"].lines["1"]
