@@ -174,7 +174,7 @@ class Load:
 class MeshSettings:
     size: float  # m
     order: int
-    element: str  # "triangle" or "quad"
+    element: str  # "triangle", "quad" (9-node with order 2) or "quad8"
 
 
 @dataclass(frozen=True)
@@ -741,8 +741,8 @@ class _PlanBuilder:
 
     def mesh_settings(self, raw: dict, size: float) -> MeshSettings:
         element = raw.get("element", "triangle")
-        if element not in ("triangle", "quad"):
-            self.problem("mesh.element", f'must be "triangle" or "quad", got "{element}"')
+        if element not in ("triangle", "quad", "quad8"):
+            self.problem("mesh.element", f'must be "triangle", "quad" (9-node) or "quad8" (8-node), got "{element}"')
         order = raw.get("order", 2)
         if order not in (1, 2):
             self.problem("mesh.order", f"must be 1 or 2 (2, quadratic, is recommended), got {order}")

@@ -199,6 +199,7 @@ def classification_to_json(classification, units: OutputUnits) -> dict | None:
                     "ADVE": _r(units.displacement_out(span.adve)),
                     "ratio": _r(span.ratio) if np.isfinite(span.ratio) else None,
                     "flexible": span.flexible,
+                    "verdict": "may be idealized as flexible" if span.flexible else "not flexible",
                     "behaviour": span.behaviour,
                 }
                 for span in check.spans

@@ -109,3 +109,17 @@ def test_interrupted_write_keeps_previous_results(tmp_path, monkeypatch):
         results.write(out, report=False)
     assert {p.name: p.read_bytes() for p in out.iterdir()} == previous
     assert [p.name for p in tmp_path.iterdir()] == ["out"]
+
+
+def test_metric_plan_with_skewed_wall(tmp_path):
+    """A plan in metres reports kN, m and mm; a wall on a skewed line takes force under the
+    rigid and semi-rigid assumptions (none under the flexible method, as documented)."""
+    plan = load_plan(Path(__file__).parents[1] / "examples" / "harbour_kiosk_metric.toml")
+    doc = analyze(plan).to_json()
+    assert doc["units"] == {"force": "kN", "position": "m", "displacement": "mm", "unit_shear": "kN/m"}
+    for assumption in ("rigid", "semirigid"):
+        case = doc["assumptions"][assumption]["cases"]["E+x"]
+        assert abs(case["walls"]["F1"]) > 0.1
+        assert case["equilibrium_residual"] < 1e-8
+    assert doc["assumptions"]["flexible"]["cases"]["E+x"]["walls"]["F1"] == 0.0
+    assert any("skewed" in note for note in doc["assumptions"]["flexible"]["notes"])
