@@ -233,9 +233,18 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
     def table(entries):
         return {name: {k: _governing(v, units) for k, v in slots.items()} for name, slots in entries.items()}
 
+    lines = {
+        name: {
+            "reaction": _governing(envelope.line_reactions[name]["design"], units),
+            "collector_peak": _governing(slots["design"], units),
+            "collector_peak_with_overstrength": _governing(slots["with_overstrength"], units),
+        }
+        for name, slots in envelope.collectors.items()
+    }
     return {
         "allowed_assumptions": {axis: list(names) for axis, names in envelope.allowed.items()},
         "walls": table(envelope.walls),
+        "lines": lines,
         "line_reactions": table(envelope.line_reactions),
         "collectors": table(envelope.collectors),
         "chords": table(envelope.chords),
