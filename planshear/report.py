@@ -284,19 +284,33 @@ def _slug(text: str) -> str:
     return "".join(ch if ch.isalnum() else "_" for ch in text).strip("_")
 
 
-def _text_page(pdf: PdfPages, title: str, lines: list[str]) -> None:
-    fig = Figure(figsize=(8.27, 11.69), facecolor="white")
+def _text_pages(pdf: PdfPages, sections: list[tuple[str, list[str]]]) -> None:
+    """A4 pages of monospaced text, sections flowing one after the other."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
 
-    FigureCanvasAgg(fig)
-    fig.text(0.07, 0.95, title, fontsize=14, weight="bold", va="top")
-    y = 0.91
-    for line in lines:
-        fig.text(0.07, y, line, fontsize=7.5, family="monospace", va="top")
-        y -= 0.015
-        if y < 0.04:
-            break
-    pdf.savefig(fig)
+    fig, y = None, 0.0
+
+    def new_page():
+        page = Figure(figsize=(8.27, 11.69), facecolor="white")
+        FigureCanvasAgg(page)
+        return page, 0.95
+
+    for title, lines in sections:
+        if fig is None or y < 0.12:
+            if fig is not None:
+                pdf.savefig(fig)
+            fig, y = new_page()
+        fig.text(0.07, y, title, fontsize=12, weight="bold", va="top")
+        y -= 0.03
+        for line in lines:
+            if y < 0.04:
+                pdf.savefig(fig)
+                fig, y = new_page()
+            fig.text(0.07, y, line, fontsize=7, family="monospace", va="top")
+            y -= 0.0135
+        y -= 0.02
+    if fig is not None:
+        pdf.savefig(fig)
 
 
 def _plain_rows(headers: list[str], rows: list[list]) -> list[str]:
@@ -331,19 +345,22 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
             "",
             *_wrap(CAUTION, 110),
         ]
-        _text_page(pdf, "planshear report", summary)
+        sections = [("planshear report", summary)]
         for key, title in (("materials", "Materials"), ("stiffness", "Wall stiffness"), ("loads", "Loads"),
                            ("cases", "Load cases"),
                            ("classification", "Flexibility check"), ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
-            _text_page(pdf, title, _plain_rows(headers, rows))
+            sections.append((title, _plain_rows(headers, rows)))
+        _text_pages(pdf, sections)
         figures = _figures(doc, results, folder, pdf)
-        _text_page(pdf, "Methods, sources and limitations",
-                   [line for name, text in METHODS_TEXT for line in _wrap(f"{name}: {text}", 110)]
-                   + [""] + [line for text in LIMITATIONS_TEXT for line in _wrap(f"- {text}", 110)]
-                   + [""] + _wrap(CAUTION, 110))
+        _text_pages(pdf, [(
+            "Methods, sources and limitations",
+            [line for name, text in METHODS_TEXT for line in _wrap(f"{name}: {text}", 110)]
+            + [""] + [line for text in LIMITATIONS_TEXT for line in _wrap(f"- {text}", 110)]
+            + [""] + _wrap(CAUTION, 110),
+        )])
     written.append("report.pdf")
     (folder / "report.html").write_text(_html(doc, tables, figures), encoding="utf-8")
     written.append("report.html")

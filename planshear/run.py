@@ -160,7 +160,7 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
         "walls_along_x": [w.id for w in plan.walls if abs(w.direction[0]) > 1e-9],
         "walls_along_y": [w.id for w in plan.walls if abs(w.direction[1]) > 1e-9],
         "wall_stiffness": {
-            w.id: {"k": round(units.force_out(w.k) * units.displacement_factor, 6), "formula": w.stiffness.formula}
+            w.id: {"k": round(units.stiffness_out(w.k), 6), "formula": w.stiffness.formula}
             for w in plan.walls
         },
         "stiffness_unit": f"{units.force}/{units.displacement}",
@@ -169,10 +169,10 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
             {
                 "zone": name,
                 "kind": m.kind,
-                "Et_x": round(units.line_force_out(m.Et_x) * units.length_factor / units.displacement_factor, 6),
-                "Et_y": round(units.line_force_out(m.Et_y) * units.length_factor / units.displacement_factor, 6),
+                "Et_x": round(units.stiffness_out(m.Et_x), 6),
+                "Et_y": round(units.stiffness_out(m.Et_y), 6),
                 "nu": m.nu,
-                "Gt": round(units.line_force_out(m.Gt) * units.length_factor / units.displacement_factor, 6),
+                "Gt": round(units.stiffness_out(m.Gt), 6),
                 "description": m.description,
             }
             for name, m in [("main", plan.material)] + [(z.name, z.material) for z in plan.zones]

@@ -138,4 +138,9 @@ class OutputUnits:
         return metres / self.displacement_factor
 
     def line_force_out(self, newtons_per_metre):
+        """N/m → force per plan length (kip/ft or kN/m), e.g. unit shear."""
         return newtons_per_metre * self.length_factor / self.force_factor
+
+    def stiffness_out(self, newtons_per_metre):
+        """N/m → force per displacement unit (kip/in or kN/mm), e.g. wall stiffness, Gt."""
+        return newtons_per_metre * self.displacement_factor / self.force_factor

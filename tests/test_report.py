@@ -85,6 +85,9 @@ def test_report_tables_equal_results_json(package):
     assert len(rows) == len(spans)
     for row, span in zip(rows, spans, strict=True):
         assert row[3] == f"{span['MDD']:.6g}" and row[5] == f"{span['ratio']:.6g}"
+    # The demo's main sheathing has Ga = 12 kip/in, the west strip 24 kip/in (G·t = Ga).
+    assert [m["Gt"] for m in doc["plan"]["materials"]] == pytest.approx([12.0, 24.0])
+    assert doc["plan"]["wall_stiffness"]["W1"]["k"] == pytest.approx(60.0)
     materials = parser.tables["materials"]
     for row, material in zip(materials[1:], doc["plan"]["materials"], strict=True):
         assert row[0] == material["zone"] and row[5] == f"{material['Gt']:.6g}"

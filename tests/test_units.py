@@ -61,5 +61,6 @@ def test_output_units_round_trip():
     assert units.force_out(4448.2216152605) == pytest.approx(1.0)
     assert units.line_force_out(1.459390e1) == pytest.approx(1e-3, rel=1e-6)  # 1 plf = 0.001 kip/ft
     assert units.displacement_out(0.0254) == pytest.approx(1.0)
+    assert units.stiffness_out(1.751268e5) == pytest.approx(1.0, rel=1e-6)  # 1 kip/in (SP 811 B.9 via lbf/in)
     si = OutputUnits.for_plan("m")
     assert si.force_out(1000.0) == 1.0 and si.displacement_out(0.001) == pytest.approx(1.0)
