@@ -65,7 +65,7 @@ DEFAULT_AXIAL_RATIO = 0.1
 #: Default cracked-section factor for concrete diaphragms (0.25 of gross for
 #: nonprestressed slabs; see VALIDATION.md 7.3, an ASCE-published effective-stiffness table).
 DEFAULT_CRACKED = 0.25
-#: Relative geometric tolerance (fraction of the plan size).
+#: Relative tolerance for zero areas (fraction of the plan size).
 GEOMETRY_TOLERANCE = 1e-9
 
 
@@ -262,6 +262,8 @@ class _PlanBuilder:
         self.problems: list[str] = []
         self.unit = "ft"
         self.scale = 1.0
+        self.tol = 0.0  # geometric tolerance (m), set from the outline's size
+        self.region_area = 0.0  # m², set once the openings are known
 
     # -- helpers ------------------------------------------------------------------------
 
@@ -339,7 +341,7 @@ class _PlanBuilder:
         if outline is None:
             raise PlanError(self.problems)
         size = max(np.ptp(np.asarray(outline.exterior.coords), axis=0))
-        self.tol = GEOMETRY_TOLERANCE * size * 1e3  # 1e-6 of the plan size
+        self.tol = 1e-6 * size
 
         openings = []
         for i, raw in enumerate(dia.get("openings", [])):
@@ -398,8 +400,6 @@ class _PlanBuilder:
         loads = self.loads(doc.get("load", []), lines_by_name, zones, region)
         mesh = self.mesh_settings(doc.get("mesh", {}), size)
         classification = self.classification(doc.get("classification", {}))
-        if material is None:
-            pass  # already reported
         if self.problems:
             raise PlanError(self.problems)
         outline_xy = np.asarray(outline.exterior.coords)[:-1]
