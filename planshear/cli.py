@@ -82,6 +82,9 @@ def main(argv: list[str] | None = None) -> int:
     except AnalysisError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
+    except (FileExistsError, PermissionError, IsADirectoryError, NotADirectoryError) as exc:
+        print(f"error: cannot write the results: {exc}; choose another --out folder", file=sys.stderr)
+        return EXIT_BAD_INPUT
     except KeyboardInterrupt:
         print("interrupted; earlier results (if any) were left as they were", file=sys.stderr)
         return EXIT_INTERNAL

@@ -390,7 +390,11 @@ class _PlanBuilder:
             if overlapping:
                 self.problem(where, f'overlaps zone "{overlapping[0]}"; zones must not overlap')
                 continue
-            zones.append(Zone(zone_name, polygon, polygon.intersection(region), zone_material))
+            zone_region = polygon.intersection(region)
+            if zone_region.area <= self.tol * size:
+                self.problem(where, "lies entirely inside an opening, so it covers no diaphragm; move or remove it")
+                continue
+            zones.append(Zone(zone_name, polygon, zone_region, zone_material))
 
         self.region_area = region.area
         grid_lines = self.grid(doc["grid"], outline)
@@ -582,6 +586,12 @@ class _PlanBuilder:
             if not covered.covers(segment):
                 outside = segment.difference(region.buffer(self.tol)).length / self.scale
                 self.problem(where, f"is not on the diaphragm ({outside:.4g} {self.unit} of it lies outside the outline or inside an opening); move it onto the diaphragm")
+                continue
+            clash = next((w for w in walls if w.line == line.name and min(w.t_to, t1) - max(w.t_from, t0) > self.tol), None)
+            if clash is not None:
+                lo, hi = max(clash.t_from, t0) / self.scale, min(clash.t_to, t1) / self.scale
+                self.problem(where, f'overlaps wall "{clash.id}" on line "{line.name}" between {lo:g} and {hi:g} {self.unit}; '
+                                    "walls on one line must not overlap (give one wall the combined stiffness)")
                 continue
             stiffness = self.wall_stiffness(entry, forms[0], where, t1 - t0)
             if stiffness is None:

@@ -123,3 +123,13 @@ def test_metric_plan_with_skewed_wall(tmp_path):
         assert case["equilibrium_residual"] < 1e-8
     assert doc["assumptions"]["flexible"]["cases"]["E+x"]["walls"]["F1"] == 0.0
     assert any("skewed" in note for note in doc["assumptions"]["flexible"]["notes"])
+
+
+def test_output_path_that_is_a_file_is_refused(tmp_path, capsys):
+    target = tmp_path / "taken"
+    target.write_text("not a folder")
+    assert main(["run", str(EXAMPLE), "--out", str(target), "--quiet", "--no-report"]) == 2
+    err = capsys.readouterr().err
+    assert "choose another --out" in err and "Traceback" not in err
+    assert target.read_text() == "not a folder"
+    assert [p.name for p in tmp_path.iterdir()] == ["taken"]  # no partial folder left behind
