@@ -65,6 +65,8 @@ DEFAULT_AXIAL_RATIO = 0.1
 #: Default cracked-section factor for concrete diaphragms (0.25 of gross for
 #: nonprestressed slabs; see VALIDATION.md 7.3, an ASCE-published effective-stiffness table).
 DEFAULT_CRACKED = 0.25
+#: Largest plan coordinate accepted, in the plan's length unit.
+MAX_COORDINATE = 1e6
 #: Relative tolerance for zero areas (fraction of the plan size).
 GEOMETRY_TOLERANCE = 1e-9
 
@@ -228,7 +230,7 @@ def load_plan(path: str | Path) -> Plan:
     path = Path(path)
     label = path.name
     try:
-        text = path.read_text(encoding="utf-8")
+        text = path.read_text(encoding="utf-8-sig")  # tolerate a byte-order mark
     except FileNotFoundError:
         raise PlanError([f"{path}: file not found; check the path"]) from None
     except IsADirectoryError:
@@ -297,6 +299,9 @@ class _PlanBuilder:
         array = np.asarray(raw, dtype=float)
         if not np.all(np.isfinite(array)):
             self.problem(where, "has a coordinate that is not a finite number; fix the point")
+            return None
+        if np.any(np.abs(array) > MAX_COORDINATE):
+            self.problem(where, f"has a coordinate beyond ±{MAX_COORDINATE:g} {self.unit}; check the number and length_unit")
             return None
         return array * self.scale
 
@@ -514,10 +519,14 @@ class _PlanBuilder:
                     continue
                 origin, direction, t_lo, t_hi = start, (end - start) / length, 0.0, length
             else:
-                if not math.isfinite(value):
-                    self.problem(where, f"position must be a finite number, got {value}")
+                if not math.isfinite(value) or abs(value) > MAX_COORDINATE:
+                    self.problem(where, f"position must be a finite number within ±{MAX_COORDINATE:g}, got {value}")
                     continue
                 c = value * self.scale
+                twin = next((g for g in lines if g.family == family and abs(g.origin[0 if family == "x" else 1] - c) <= self.tol), None)
+                if twin is not None:
+                    self.problem(where, f'lies on grid line "{twin.name}" (both at {family} = {value:g}); give each position one name')
+                    continue
                 if family == "x":
                     origin, direction, t_lo, t_hi = np.array([c, 0.0]), np.array([0.0, 1.0]), miny - pad, maxy + pad
                 else:

@@ -34,6 +34,10 @@ UNITS.define("plf = pound_force / foot")
 UNITS.define("klf = kip / foot")
 UNITS.define("pcf = pound_force / foot ** 3")
 
+#: Largest magnitude accepted for any quantity in SI units (beyond it a value is a typo or
+#: would overflow later; a "rigid" wall of 1e6 kip/in is about 1.8e11 N/m).
+PLAUSIBLE_LIMIT = 1e20
+
 #: Plan length units allowed for bare coordinates, with their size in metres.
 LENGTH_UNITS = {"ft": 0.3048, "m": 1.0}
 
@@ -101,6 +105,8 @@ def parse_quantity(value: object, dimension: Dimension, length_unit: str) -> flo
     magnitude = float(quantity.to_base_units().magnitude)
     if not math.isfinite(magnitude):
         raise QuantityError(f'"{text}" is not a finite number')
+    if abs(magnitude) > PLAUSIBLE_LIMIT:
+        raise QuantityError(f'"{text}" is implausibly large for a {dimension.name}; check the number and the unit')
     return magnitude
 
 
