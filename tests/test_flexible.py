@@ -219,7 +219,8 @@ def test_line_crossing_an_opening_has_reduced_length(plan_from):
 
 
 def test_one_line_of_resistance_is_not_a_flexible_structure(plan_from):
-    walls = end_walls().replace('line = "2"', 'line = "1"')
+    walls = end_walls().replace('line = "2"\nfrom = 0\nto = 50', 'line = "1"\nfrom = 30\nto = 50')
+    walls = walls.replace('line = "1"\nfrom = 0\nto = 50', 'line = "1"\nfrom = 0\nto = 20', 1)
     plan = plan_from(rectangle_plan(walls=walls).replace('"2" = 100.0', '"2" = 100.0'))
     with pytest.raises(AnalysisError, match="at least two lines of resistance"):
         _flexible(plan)
