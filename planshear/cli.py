@@ -25,6 +25,9 @@ def _parser() -> argparse.ArgumentParser:
         prog="planshear",
         description="Diaphragm analysis as flexible, rigid and semi-rigid. " + CAUTION,
     )
+    from . import __version__
+
+    parser.add_argument("--version", action="version", version=f"planshear {__version__}")
     sub = parser.add_subparsers(dest="command", required=True)
     check = sub.add_parser("check", help="validate a plan file and print a short summary")
     check.add_argument("plan", help="plan file (.toml)")

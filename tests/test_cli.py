@@ -88,9 +88,21 @@ def test_console_script_exit_code_for_bad_input(tmp_path):
 
 def test_public_api_resolves():
     import planshear
+    import planshear.fem
+    import planshear.mesh
 
-    for name in planshear.__all__:
-        assert hasattr(planshear, name)
+    for module in (planshear, planshear.fem, planshear.mesh):
+        for name in module.__all__:
+            assert hasattr(module, name), (module.__name__, name)
+
+
+def test_version_flag(capsys):
+    import planshear
+
+    with pytest.raises(SystemExit) as stop:
+        main(["--version"])
+    assert stop.value.code == 0
+    assert planshear.__version__ in capsys.readouterr().out
 
 
 def test_interrupted_write_keeps_previous_results(tmp_path, monkeypatch):
