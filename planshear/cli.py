@@ -168,7 +168,7 @@ def _print_results(results: Results, out: Path) -> None:
         design, omega = slots.get("design"), slots.get("with_overstrength")
         if design:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
-                  f"×Ω0: {omega['value']:.2f}")
+                  f"×Ω0: {omega['value']:.2f}" + ("   (!) no collector member in the model" if "caution" in slots else ""))
     print(f"\nchord peaks ({force}, tension +)")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")

@@ -34,6 +34,7 @@ class LineResult:
     collector: np.ndarray  # N, tension positive
     residual: float  # N
     side_shear: np.ndarray | None = None  # (k, 3): t, delivered per length from left, from right
+    has_member: bool | None = None  # semi-rigid only: whether a bar (collector/chord) lies on the line
 
     @property
     def peak(self) -> float:
@@ -112,6 +113,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             ],
             "residual": _r(units.force_out(line.residual)),
         }
+        if line.has_member is not None:
+            lines[name]["collector_member"] = line.has_member
         if line.side_shear is not None:
             lines[name]["delivered_shear_diagram"] = [
                 [_r(units.length_out(t)), _r(units.line_force_out(a)), _r(units.line_force_out(b))]
@@ -241,12 +244,16 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
         }
         for name, slots in envelope.collectors.items()
     }
+    collectors = table(envelope.collectors)
+    for name, text in envelope.cautions.items():
+        collectors.setdefault(name, {})["caution"] = text
+        lines.setdefault(name, {})["caution"] = text
     return {
         "allowed_assumptions": {axis: list(names) for axis, names in envelope.allowed.items()},
         "walls": table(envelope.walls),
         "lines": lines,
         "line_reactions": table(envelope.line_reactions),
-        "collectors": table(envelope.collectors),
+        "collectors": collectors,
         "chords": table(envelope.chords),
     }
 

@@ -74,12 +74,20 @@ def semirigid_analysis(
             equilibrium_residual=max(residual, float(solution.residual[j])),
             extra={"solver_residual": float(f"{solution.residual[j]:.3e}"), "unit_shear_by_zone": by_zone},
         )
-    notes = (
+    notes = [
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "
         f"freedom, factorized once ({solution.backend}) for {len(selected)} cases",
-    )
+    ]
+    bare = sorted({name for lines, *_ in per_case for name, line in lines.items()
+                   if line.has_member is False and any(w.line == name for w in plan.walls)})
+    if bare:
+        notes.append(
+            "lines with walls but no collector member: " + ", ".join(bare) + "; their semi-rigid collector "
+            "force is zero because the sheathing itself drags the load to the walls. Add a collector "
+            "[[member]] on these lines to read the force a collector would carry"
+        )
     extra = {"mesh": {"elements": int(len(mesh.elements)), "element_type": mesh.element_type,
                       "nodes": int(mesh.n_nodes), "dofs": int(mesh.n_dofs), "solver": solution.backend}}
     if stiffness_factor != 1.0:
         extra["stiffness_factor"] = stiffness_factor
-    return SemirigidRun(MethodResult("semirigid", results, notes, extra), mesh, solution)
+    return SemirigidRun(MethodResult("semirigid", results, tuple(notes), extra), mesh, solution)

@@ -34,6 +34,7 @@ class Envelope:
     line_reactions: dict[str, dict[str, Governing | None]]
     collectors: dict[str, dict[str, Governing | None]]  # name → {"design", "with_overstrength", "information"}
     chords: dict[str, dict[str, Governing | None]]
+    cautions: dict[str, str]  # line → why its semi-rigid collector value may understate the demand
 
 
 def _allowed(classification: Classification | None, methods: dict[str, MethodResult]) -> dict[str, tuple[str, ...]]:
@@ -92,7 +93,20 @@ def build_envelope(
                 slot["information"] = _better(slot["information"], chord.peak, assumption, case_name)
                 if design:
                     slot["design"] = _better(slot["design"], chord.peak, assumption, case_name)
-    return Envelope(allowed, walls, reactions, collectors, chords)
+    cautions = {}
+    for assumption, method in methods.items():
+        if not assumption.startswith("semirigid"):
+            continue
+        for result in method.cases.values():
+            for name, line in result.lines.items():
+                if line.has_member is False and abs(line.reaction) > 1e-9 * result.applied_force:
+                    cautions[name] = (
+                        "walls on this line but no collector or chord member in the model: the semi-rigid "
+                        "collector force is the bar force only (here none), the sheathing drags the load to "
+                        "the walls; add a [[member]] with role = \"collector\" on this line to read the force "
+                        "a collector would carry, and see the idealized results"
+                    )
+    return Envelope(allowed, walls, reactions, collectors, chords, cautions)
 
 
 def compare_walls(methods: dict[str, MethodResult]) -> dict[str, dict[str, dict[str, float | None]]]:

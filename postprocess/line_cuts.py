@@ -52,6 +52,7 @@ class LineCut:
     strip_force: np.ndarray  # (m, c) N, membrane force within the effective width
     running: np.ndarray  # (m, c) N, −(running sum of non-bar forces) at the same stations
     residual: np.ndarray  # (c,) N
+    has_bar: bool = False  # a chord or collector bar lies on (part of) the line
 
 
 def _side_sign(grid_line: GridLine) -> float:
@@ -175,7 +176,7 @@ def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.
     if width > 0 and membrane is not None:
         strip = _strip_force(mesh, membrane, elements, e, width, centroids, grid_line, stations)
     return LineCut(grid_line.name, t, tributary, from_left, from_right, applied, wall, stations,
-                   values, strip, running, residual)
+                   values, strip, running, residual, bool(on_line_edges))
 
 
 def _strip_force(mesh, membrane, elements, e, width, centroids, grid_line, stations) -> np.ndarray:
@@ -265,6 +266,7 @@ def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple]:
                 collector=cut.bar_force[:, j] + cut.strip_force[:, j],
                 residual=float(cut.residual[j]),
                 side_shear=np.column_stack([cut.t, q_left, q_right]),
+                has_member=cut.has_bar,
             )
         chord_results = {name: ChordResult(name, st, val[:, j]) for name, (st, val) in chords.items()}
         for member in plan.members:
