@@ -32,11 +32,27 @@ from .postprocess.line_cuts import membrane_forces
 __all__ = ["write_mesh_files"]
 
 
-def _edge_fields(plan: Plan, solution: Solution) -> tuple[np.ndarray, np.ndarray]:
-    """Bar axial force per mesh edge and case (N, mean of the two ends) and wall index."""
+def _edge_index(mesh, edges: np.ndarray) -> np.ndarray:
+    """Row of each of ``edges`` in mesh.edges (matched by end nodes), −1 if absent."""
+    n = mesh.n_nodes
+
+    def keys(e):
+        lo, hi = np.minimum(e[:, 0], e[:, 1]), np.maximum(e[:, 0], e[:, 1])
+        return lo.astype(np.int64) * n + hi
+
+    all_keys = keys(mesh.edges)
+    order = np.argsort(all_keys)
+    wanted = keys(edges)
+    pos = np.clip(np.searchsorted(all_keys[order], wanted), 0, len(order) - 1)
+    found = all_keys[order][pos] == wanted
+    return np.where(found, order[pos], -1)
+
+
+def _edge_fields(plan: Plan, solution: Solution) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Per mesh edge and case: bar axial force (N, mean of the two ends, bars on the same
+    edge added), the wall spring's force along its wall (N), and the wall index."""
     mesh = solution.assembly.mesh
     n_cases = solution.displacements.shape[1]
-    key = {tuple(sorted(map(int, e[:2]))): i for i, e in enumerate(mesh.edges)}
     force = np.zeros((len(mesh.edges), n_cases))
     for bar in solution.assembly.bars:
         f = np.einsum("mij,mjc->mic", bar.matrices, solution.displacements[element_dofs(bar.edges)])
@@ -45,21 +61,17 @@ def _edge_fields(plan: Plan, solution: Solution) -> tuple[np.ndarray, np.ndarray
         tangent = xy[:, 1] - xy[:, 0]
         tangent /= np.linalg.norm(tangent, axis=1)[:, None]
         axial = 0.5 * (np.einsum("mdc,md->mc", f[:, 1], tangent) - np.einsum("mdc,md->mc", f[:, 0], tangent))
-        for row, edge in enumerate(bar.edges):
-            index = key.get(tuple(sorted(map(int, edge[:2]))))
-            if index is not None:
-                force[index] += axial[row]
+        index = _edge_index(mesh, bar.edges)
+        np.add.at(force, index[index >= 0], axial[index >= 0])
     wall_index = np.full(len(mesh.edges), -1)
     spring_force = np.zeros((len(mesh.edges), n_cases))
     ids = {w.id: i for i, w in enumerate(plan.walls)}
     for spring in solution.assembly.springs:
         f = np.einsum("mij,mjc->mic", spring.matrices, solution.displacements[element_dofs(spring.edges)])
         along = np.einsum("mndc,d->mc", f.reshape(len(spring.edges), -1, 2, n_cases), spring.direction)
-        for row, edge in enumerate(spring.edges):
-            index = key.get(tuple(sorted(map(int, edge[:2]))))
-            if index is not None:
-                wall_index[index] = ids[spring.wall_id]
-                spring_force[index] = along[row]
+        index = _edge_index(mesh, spring.edges)
+        wall_index[index[index >= 0]] = ids[spring.wall_id]
+        spring_force[index[index >= 0]] = along[index >= 0]
     return force, wall_index, spring_force
 
 
