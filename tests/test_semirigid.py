@@ -225,3 +225,27 @@ def test_interior_chord_member_is_reported(plan_from):
     chord = case.chords["chord on M"]
     assert chord.stations[0] == pytest.approx(0.0) and chord.stations[-1] / FT == pytest.approx(100.0)
     assert abs(case.lines["M"].residual) < 1e-8 * case.applied_force
+
+
+def test_unit_shear_and_chord_force_of_a_simple_span(plan_from):
+    """Simply supported diaphragm, w = 0.2 k/ft over L = 100 ft, d = 50 ft (Taly 2010,
+    Eqs. 4.130–4.133; statics): unit shear at the supports v = wL/(2d) = 0.2 k/ft, chord
+    force at midspan T = wL²/(8d) = 5 k. The line cut at the support gives the delivered
+    shear along its middle within 5 % (it rises towards the corners, where the chords bring
+    their share), and the chord bars carry T within 3 %."""
+    walls = (wall("W1", "1", 0, 50, "1e5 kip/in") + wall("W2", "2", 0, 50, "1e5 kip/in")
+             + wall("WA", "A", 45, 55, "10 kip/in") + wall("WB", "B", 45, 55, "10 kip/in"))
+    plan = plan_from(box(walls=walls, mesh_size=2.5))
+    case = semirigid_analysis(plan, expand_load_cases(plan)).result.cases["E+y"]
+    line = case.lines["1"]
+    t, from_left, from_right = line.side_shear.T
+    middle = (t / FT > 10) & (t / FT < 40)
+    assert np.allclose(from_right[middle] / (KIP / FT), 0.2, rtol=0.05)
+    assert np.all(np.abs(from_left) < 1e-9 * KIP)  # nothing lies west of line 1
+    assert line.reaction / KIP == pytest.approx(10.0, rel=1e-6)  # wL/2
+    # The diaphragm delivers all but the load that sits on the line's own nodes.
+    assert line.delivered / KIP == pytest.approx(10.0, rel=0.01)
+    top = case.chords["edge 3"]
+    assert top.peak / KIP == pytest.approx(5.0, rel=0.03)
+    assert top.peak_position / FT == pytest.approx(50.0, abs=5.0)
+    assert case.chords["edge 1"].peak / KIP == pytest.approx(-5.0, rel=0.03)
