@@ -134,3 +134,18 @@ def test_skewed_wall_participates(plan_from):
     assert total_x / KIP == pytest.approx(100.0, rel=1e-12)
     assert case.equilibrium_residual < 1e-10
     np.testing.assert_allclose(plan.line("K").direction, [2**-0.5, 2**-0.5])
+
+
+def test_accidental_torsion_never_reduces_a_wall(plan_from):
+    """Taly (2010) Example 7.12 design values (VALIDATION.md 6.3 and pitfall 4): wall A is
+    designed for 52.36 k, wall B stays at its 55.0 k direct shear — the envelope over the
+    base and ±ecc cases never lets accidental torsion lower a wall force."""
+    from planshear.loads import expand_load_cases as cases_of
+    from planshear.postprocess.envelope import build_envelope
+
+    plan = plan_from(BOX_90x60)
+    cases = cases_of(plan)
+    envelope = build_envelope({"rigid": rigid_analysis(plan, cases)}, cases, None)
+    assert envelope.walls["A"]["rigid"].value / KIP == pytest.approx(52.36, abs=0.005)
+    assert envelope.walls["B"]["rigid"].value / KIP == pytest.approx(55.0, abs=0.005)
+    assert envelope.walls["B"]["rigid"].case == "E+y+ecc"
