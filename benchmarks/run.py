@@ -55,9 +55,8 @@ def worker(kind: str, dofs: int, references: bool) -> dict:
     from planshear.plan import parse_plan
     from planshear.postprocess.classify import classify
     from planshear.postprocess.envelope import build_envelope
-    from planshear.postprocess.line_cuts import line_results_all_cases
+    from planshear.postprocess.line_cuts import line_results_all_cases, membrane_forces
     from planshear.run import Results
-    from planshear.semirigid import SemirigidRun
 
     from .plans import irregular, rectangle
 
@@ -80,7 +79,7 @@ def worker(kind: str, dofs: int, references: bool) -> dict:
     from planshear.fem.model import solve
 
     solution = solve(assembly, plan, cases, loads)  # checked solve for the later stages (not timed)
-    _, times["line_cuts"] = _timed(line_results_all_cases, plan, solution)
+    _, times["line_cuts"] = _timed(lambda: line_results_all_cases(plan, solution, membrane_forces(solution)))
 
     def idealized():
         return flexible_analysis(plan, cases), rigid_analysis(plan, cases)
@@ -92,7 +91,7 @@ def worker(kind: str, dofs: int, references: bool) -> dict:
     semi = semirigid_analysis(plan, cases, mesh=mesh)
     methods = {"flexible": flexible, "rigid": rigid, "semirigid": semi.result}
     classification = classify(plan, semi.solution)
-    results = Results(plan, tuple(cases), methods, {}, SemirigidRun(semi.result, mesh, semi.solution),
+    results = Results(plan, tuple(cases), methods, {}, semi,
                       classification, {}, build_envelope(methods, cases, classification))
     with tempfile.TemporaryDirectory() as folder:
         _, times["write"] = _timed(results.write, Path(folder) / "out", False)

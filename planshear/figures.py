@@ -113,51 +113,55 @@ def plan_figure(doc: dict, plan) -> Figure:
     return fig
 
 
+def _diagram_figure(doc: dict, cases: dict[str, str], pick, height: float, xlabel: str, ylabel: str,
+                    title: str, annotate: bool) -> Figure:
+    """One diagram per assumption (assumption → case name) with its peak marked;
+    ``pick(case_doc)`` returns (points [[s, value], …], peak position, peak value) or None."""
+    fig, ax = _figure(7.5, height)
+    for assumption, case_name in cases.items():
+        picked = pick(doc["assumptions"].get(assumption, {}).get("cases", {}).get(case_name, {}))
+        if not picked or len(picked[0]) == 0:
+            continue
+        points, peak_at, peak = picked
+        diagram = np.array(points, dtype=float)
+        style = STYLE[assumption]
+        ax.plot(diagram[:, 0], diagram[:, 1], color=style["color"], ls=style["linestyle"], lw=1.5,
+                label=f"{assumption} ({case_name})")
+        ax.plot(peak_at, peak, marker=style["marker"], color=style["color"], ms=7, mfc="white")
+        if annotate:
+            ax.annotate(f"{peak:.1f}", (peak_at, peak), xytext=(4, 4), textcoords="offset points", fontsize=7,
+                        color=style["color"])
+    ax.axhline(0.0, color=INK, lw=0.6)
+    ax.set_xlabel(xlabel, fontsize=8)
+    ax.set_ylabel(ylabel, fontsize=8)
+    ax.legend(fontsize=7, frameon=False)
+    ax.set_title(title, fontsize=9)
+    return fig
+
+
 def collector_figure(doc: dict, line: str, cases: dict[str, str]) -> Figure:
     """Collector force along a line under each assumption for the given cases
     (assumption → case name), peaks marked."""
     units = doc["units"]
-    fig, ax = _figure(7.5, 3.2)
-    for assumption, case_name in cases.items():
-        data = doc["assumptions"].get(assumption, {}).get("cases", {}).get(case_name, {}).get("lines", {}).get(line)
-        if not data:
-            continue
-        diagram = np.array(data["collector"], dtype=float)
-        if len(diagram) == 0:
-            continue
-        style = STYLE[assumption]
-        ax.plot(diagram[:, 0], diagram[:, 1], color=style["color"], ls=style["linestyle"], lw=1.5,
-                label=f"{assumption} ({case_name})")
-        ax.plot(data["collector_peak_at"], data["collector_peak"], marker=style["marker"], color=style["color"],
-                ms=7, mfc="white")
-        ax.annotate(f"{data['collector_peak']:.1f}", (data["collector_peak_at"], data["collector_peak"]),
-                    xytext=(4, 4), textcoords="offset points", fontsize=7, color=style["color"])
-    ax.axhline(0.0, color=INK, lw=0.6)
-    ax.set_xlabel(f"position along line {line} ({units['position']})", fontsize=8)
-    ax.set_ylabel(f"N ({units['force']}), tension +", fontsize=8)
-    ax.legend(fontsize=7, frameon=False)
-    ax.set_title(f"Collector force along line {line}", fontsize=9)
-    return fig
+
+    def pick(case_doc):
+        data = case_doc.get("lines", {}).get(line)
+        return data and (data["collector"], data["collector_peak_at"], data["collector_peak"])
+
+    return _diagram_figure(doc, cases, pick, 3.2, f"position along line {line} ({units['position']})",
+                           f"N ({units['force']}), tension +", f"Collector force along line {line}", True)
 
 
 def chord_figure(doc: dict, edge: str, cases: dict[str, str]) -> Figure:
+    """Chord force along an outline edge (or interior chord) under each assumption."""
     units = doc["units"]
-    fig, ax = _figure(7.5, 3.0)
-    for assumption, case_name in cases.items():
-        data = doc["assumptions"].get(assumption, {}).get("cases", {}).get(case_name, {}).get("chords", {}).get(edge)
-        if not data or not data["diagram"]:
-            continue
-        diagram = np.array(data["diagram"], dtype=float)
-        style = STYLE[assumption]
-        ax.plot(diagram[:, 0], diagram[:, 1], color=style["color"], ls=style["linestyle"], lw=1.5,
-                label=f"{assumption} ({case_name})")
-        ax.plot(data["peak_at"], data["peak"], marker=style["marker"], color=style["color"], ms=7, mfc="white")
-    ax.axhline(0.0, color=INK, lw=0.6)
-    ax.set_xlabel(f"position along {edge} from its first corner ({units['position']})", fontsize=8)
-    ax.set_ylabel(f"chord force ({units['force']}), tension +", fontsize=8)
-    ax.legend(fontsize=7, frameon=False)
-    ax.set_title(f"Chord force, {edge}", fontsize=9)
-    return fig
+
+    def pick(case_doc):
+        data = case_doc.get("chords", {}).get(edge)
+        return data and (data["diagram"], data["peak_at"], data["peak"])
+
+    return _diagram_figure(doc, cases, pick, 3.0, f"position along {edge} from its first corner ({units['position']})",
+                           f"chord force ({units['force']}), tension +", f"Chord force, {edge}", False)
 
 
 def shear_map_figure(plan, mesh, unit_shear: np.ndarray, case: str, units: dict, factor: float) -> Figure:

@@ -134,7 +134,7 @@ def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
             for w in walls:
                 forces[w.id] = f * w.k / k_line * sign[w.id]
         reactions = _wall_reactions(plan, forces)
-        main = beam_analogy(plan, case.axis, case.field, reactions)
+        main = beam_analogy(plan, case.axis, case.field, reactions, applied=applied)
         drifts = [abs(f) / line_stiffness[name] for (name, _, _), f in zip(supports, line_force, strict=True)]
         applied_sum = sum(forces[w.id] * float(w.direction @ case.direction) for w in plan.walls)
         residual = abs(applied_sum - case.force) / case.force
@@ -153,12 +153,22 @@ def _cross(a: np.ndarray, b: np.ndarray) -> float:
     return float(a[0] * b[1] - a[1] * b[0])
 
 
+def _rigid_system(plan: Plan) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Reference point (m), wall rows a_i, wall stiffnesses k_i (N/m) and the 3×3
+    rigid-body stiffness Σ k_i a_i a_iᵀ about the reference."""
+    reference = np.asarray(plan.region.centroid.coords[0])
+    rows, k = rigid_stiffness_rows(plan.walls, reference)
+    return reference, rows, k, (rows * k[:, None]).T @ rows
+
+
 def center_of_rigidity(plan: Plan) -> np.ndarray:
     """Center of rigidity (m): the point where a horizontal force in either direction
     causes no rotation, from the full 3×3 rigid-body stiffness (skewed walls included)."""
-    reference = np.asarray(plan.region.centroid.coords[0])
-    rows, k = rigid_stiffness_rows(plan.walls, reference)
-    stiffness = (rows * k[:, None]).T @ rows
+    reference, _, _, stiffness = _rigid_system(plan)
+    return _center_from(reference, stiffness)
+
+
+def _center_from(reference: np.ndarray, stiffness: np.ndarray) -> np.ndarray:
     flexibility = np.linalg.inv(stiffness)
     # Force Fy at x0 + ex gives rotation flexibility[2,1] + flexibility[2,2]·ex = 0.
     ex = -flexibility[2, 1] / flexibility[2, 2]
@@ -172,14 +182,12 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
     wall force = k × displacement along the wall. The ±ecc cases add the accidental
     torsion F·e (ASCE 7-16 §12.8.4.2). Diaphragm forces by the beam analogy along the
     load and, for the torsional wall forces, across it."""
-    center_rigidity = center_of_rigidity(plan)
     results: dict[str, CaseResult] = {}
     selected = [c for c in cases if "rigid" in c.assumptions]
     if not selected:
         return MethodResult("rigid", {}, ())
-    reference = np.asarray(plan.region.centroid.coords[0])
-    rows, k = rigid_stiffness_rows(plan.walls, reference)
-    stiffness = (rows * k[:, None]).T @ rows
+    reference, rows, k, stiffness = _rigid_system(plan)
+    center_rigidity = _center_from(reference, stiffness)
     loads = np.zeros((3, len(selected)))
     for j, case in enumerate(selected):
         arm = case.center - reference

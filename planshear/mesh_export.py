@@ -27,7 +27,6 @@ from .fem import Solution
 from .fem.model import element_dofs
 from .mesh.model import MESHIO_CELLS, MESHIO_LINES
 from .plan import Plan
-from .postprocess.line_cuts import membrane_forces
 
 __all__ = ["write_mesh_files"]
 
@@ -75,8 +74,9 @@ def _edge_fields(plan: Plan, solution: Solution) -> tuple[np.ndarray, np.ndarray
     return force, wall_index, spring_force
 
 
-def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
-    """Write mesh.vtu, mesh.xdmf and mesh.msh into ``folder``; returns the file names."""
+def write_mesh_files(folder: Path, plan: Plan, solution: Solution, membrane: np.ndarray) -> list[str]:
+    """Write mesh.vtu, mesh.xdmf and mesh.msh into ``folder``; returns the file names.
+    ``membrane`` holds the membrane forces (n_e, 3, n_cases) in N/m."""
     mesh = solution.assembly.mesh
     names = [c.name for c in solution.cases]
     points = np.column_stack([mesh.nodes, np.zeros(mesh.n_nodes)])
@@ -84,7 +84,6 @@ def write_mesh_files(folder: Path, plan: Plan, solution: Solution) -> list[str]:
     for j, name in enumerate(names):
         u = solution.node_displacements(j)
         point_data[f"u[{name}]"] = np.column_stack([u, np.zeros(mesh.n_nodes)])
-    membrane = membrane_forces(solution)  # (n_e, 3, c)
     mean = 0.5 * (membrane[:, 0] + membrane[:, 1])
     radius = np.sqrt((0.5 * (membrane[:, 0] - membrane[:, 1])) ** 2 + membrane[:, 2] ** 2)
     element_fields = {"zone": mesh.element_zone.astype(float)}

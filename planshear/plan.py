@@ -852,9 +852,9 @@ def check_stability(plan: Plan) -> None:
     scaled = rows * np.array([1.0, 1.0, 1.0 / size]) * np.sqrt(k / k.max())[:, None]
     problems = []
     label = plan.source
-    needed = sorted({d for load in plan.loads for d in load.directions} | {"x", "y"})
+    # Both directions are needed whatever the loads: torsion and the model's stability need them.
     for axis, col in (("x", 0), ("y", 1)):
-        if axis in needed and not np.any(np.abs(rows[:, col]) > 1e-9):
+        if not np.any(np.abs(rows[:, col]) > 1e-9):
             problems.append(
                 f"{label}: walls: no wall resists force in the {axis} direction; "
                 f"add a wall on a grid line parallel to {axis} (a line of grid.{'y' if axis == 'x' else 'x'})"

@@ -68,14 +68,20 @@ def _esc(value) -> str:
     return html.escape(str(value))
 
 
-def _num(value) -> str:
+def _plain(value, missing: str = "-") -> str:
+    """A table cell as text: numbers to 6 significant digits, booleans as yes/no."""
     if value is None:
-        return "–"
+        return missing
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, (int, float)):
         return f"{value:.6g}"
-    return _esc(value)
+    return str(value)
+
+
+def _num(value) -> str:
+    """A table cell for HTML."""
+    return _esc(_plain(value, missing="–"))
 
 
 def _table(headers: list[str], rows: list[list], cls: str = "") -> str:
@@ -90,20 +96,15 @@ def _table(headers: list[str], rows: list[list], cls: str = "") -> str:
 
 def _base_cases(doc: dict) -> dict[str, str]:
     """One representative base case per direction (the first seismic, else the first)."""
-    loads = doc["plan"]["loads"]
-    chosen: dict[str, str] = {}
-    source = doc["assumptions"].get("semirigid") or doc["assumptions"].get("rigid", {})
-    for name, case in source.get("cases", {}).items():
-        if name.endswith("ecc"):
+    kinds = {name: load["kind"] for name, load in doc["plan"]["loads"].items()}
+    chosen: dict[str, tuple[str, bool]] = {}
+    for case in doc["plan"]["case_details"]:
+        if case["accidental_eccentricity"]:
             continue
-        load = name.rsplit("+", 1)[0].rsplit("-", 1)[0]
-        seismic = loads.get(load, {}).get("kind") == "seismic"
-        axis = case["axis"]
-        current = chosen.get(axis)
-        current_seismic = current is not None and loads.get(current.rsplit("+", 1)[0].rsplit("-", 1)[0], {}).get("kind") == "seismic"
-        if current is None or (seismic and not current_seismic):
-            chosen[axis] = name
-    return chosen
+        axis, seismic = case["direction"][1:], kinds[case["load"]] == "seismic"
+        if axis not in chosen or (seismic and not chosen[axis][1]):
+            chosen[axis] = (case["name"], seismic)
+    return {axis: name for axis, (name, _) in chosen.items()}
 
 
 def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
@@ -262,10 +263,8 @@ def _figures(doc: dict, results, folder: Path, pdf: PdfPages) -> dict[str, list[
                 continue
             keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}", f"Chord force, {edge}, load along {axis}")
     if results.semirigid is not None:
-        from .postprocess.line_cuts import membrane_forces
-
         solution = results.semirigid.solution
-        membrane = membrane_forces(solution)
+        membrane = results.semirigid.membrane
         names = [c.name for c in solution.cases]
         units = results.units
         for case_name in base.values():
@@ -318,16 +317,6 @@ def _plain_rows(headers: list[str], rows: list[list]) -> list[str]:
     cells = [headers] + [[_plain(c) for c in row] for row in rows]
     widths = [max(len(str(r[i])) for r in cells) for i in range(len(headers))]
     return ["  ".join(str(c).ljust(w)[:40] for c, w in zip(row, widths, strict=True)) for row in cells]
-
-
-def _plain(value) -> str:
-    if value is None:
-        return "-"
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, float):
-        return f"{value:.6g}"
-    return str(value)
 
 
 def write_review_package(folder: Path, results, doc: dict) -> list[str]:

@@ -88,7 +88,7 @@ class Results:
             text = json.dumps(doc, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
             (staging / "results.json").write_text(text + "\n", encoding="utf-8")
             if self.semirigid is not None:
-                write_mesh_files(staging, self.plan, self.semirigid.solution)
+                write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane)
             if report:
                 from .report import (
                     write_review_package,  # the report module imports this one's types

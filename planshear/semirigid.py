@@ -15,7 +15,7 @@ from .fem import Solution, assemble, load_vectors, solve
 from .loads import LoadCase
 from .mesh import Mesh, build_mesh
 from .plan import Plan
-from .postprocess.line_cuts import line_results_all_cases
+from .postprocess.line_cuts import line_results_all_cases, membrane_forces
 from .results import CaseResult, MethodResult
 
 __all__ = ["SemirigidRun", "semirigid_analysis"]
@@ -28,6 +28,7 @@ class SemirigidRun:
     result: MethodResult
     mesh: Mesh
     solution: Solution
+    membrane: np.ndarray  # (n_e, 3, n_cases) N/m: Nx, Ny, Nxy at element centroids
 
 
 def semirigid_analysis(
@@ -52,7 +53,8 @@ def semirigid_analysis(
     solution = solve(assembly, plan, selected, loads)
     report("line cuts")
     results = {}
-    per_case = line_results_all_cases(plan, solution)
+    membrane = membrane_forces(solution)
+    per_case = line_results_all_cases(plan, solution, membrane)
     for j, case in enumerate(selected):
         forces = {wall_id: float(f[j]) for wall_id, f in solution.wall_forces.items()}
         total = sum(forces[w.id] * w.direction for w in plan.walls)
@@ -87,7 +89,8 @@ def semirigid_analysis(
             "[[member]] on these lines to read the force a collector would carry"
         )
     extra = {"mesh": {"elements": int(len(mesh.elements)), "element_type": mesh.element_type,
-                      "nodes": int(mesh.n_nodes), "dofs": int(mesh.n_dofs), "solver": solution.backend}}
+                      "nodes": int(mesh.n_nodes), "dofs": int(mesh.n_dofs), "solver": solution.backend},
+             "lines_without_member": bare}
     if stiffness_factor != 1.0:
         extra["stiffness_factor"] = stiffness_factor
-    return SemirigidRun(MethodResult("semirigid", results, tuple(notes), extra), mesh, solution)
+    return SemirigidRun(MethodResult("semirigid", results, tuple(notes), extra), mesh, solution, membrane)

@@ -191,11 +191,13 @@ def beam_analogy(
     field_: ForceField | None,
     reactions: list[WallReaction],
     with_chords: bool = True,
+    applied: SpanLoad | None = None,
 ) -> BeamAnalogy:
     """Beam-analogy diagrams for forces along ``axis`` ("x" or "y").
 
     ``field_`` is the applied load along +axis (None for the transverse pass of the
     rigid method, which carries only wall forces). ``reactions`` are the wall forces.
+    ``applied`` is ``load_along_span(plan, field_, axis)`` when the caller already has it.
     """
     s_index, t_index = _axes(axis)
     e_t = np.eye(2)[t_index]
@@ -203,7 +205,8 @@ def beam_analogy(
     size = float(np.ptp(plan.outline, axis=0).max())
     tol = 1e-9 * size
 
-    applied = load_along_span(plan, field_, axis) if field_ is not None else SpanLoad.empty()
+    if applied is None:
+        applied = load_along_span(plan, field_, axis) if field_ is not None else SpanLoad.empty()
     # Forces on the diaphragm from the walls: along t (reactions) and along s (axial).
     t_parts, s_parts, st_parts = [], [], []
     for r in reactions:

@@ -93,19 +93,15 @@ def build_envelope(
                 slot["information"] = _better(slot["information"], chord.peak, assumption, case_name)
                 if design:
                     slot["design"] = _better(slot["design"], chord.peak, assumption, case_name)
-    cautions = {}
-    for assumption, method in methods.items():
-        if not assumption.startswith("semirigid"):
-            continue
-        for result in method.cases.values():
-            for name, line in result.lines.items():
-                if line.has_member is False and abs(line.reaction) > 1e-9 * result.applied_force:
-                    cautions[name] = (
-                        "walls on this line but no collector or chord member in the model: the semi-rigid "
-                        "collector force is the bar force only (here none), the sheathing drags the load to "
-                        "the walls; add a [[member]] with role = \"collector\" on this line to read the force "
-                        "a collector would carry, and see the idealized results"
-                    )
+    # The semi-rigid model lists the lines that carry walls but no bar (see semirigid.py).
+    bare = {name for method in methods.values() for name in method.extra.get("lines_without_member", ())}
+    cautions = {
+        name: "walls on this line but no collector or chord member in the model: the semi-rigid collector "
+        "force is the bar force only (here none), the sheathing drags the load to the walls; add a [[member]] "
+        'with role = "collector" on this line to read the force a collector would carry, and see the '
+        "idealized results"
+        for name in sorted(bare)
+    }
     return Envelope(allowed, walls, reactions, collectors, chords, cautions)
 
 

@@ -237,15 +237,15 @@ def outline_edge_chords(plan: Plan, solution: Solution) -> dict[str, tuple[np.nd
     return result
 
 
-def line_results_all_cases(plan: Plan, solution: Solution) -> list[tuple]:
+def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray) -> list[tuple]:
     """For every case of the solution: LineResults by grid line, ChordResults by outline
     edge, the largest element-average unit shear |N_xy| (N/m) with its location, and the
-    same per zone ("main" for the diaphragm's own material)."""
+    same per zone ("main" for the diaphragm's own material). ``membrane`` is
+    :func:`membrane_forces` of the solution."""
     mesh = solution.assembly.mesh
     corners = 3 if mesh.element_type.startswith("tri") else 4
     centroids = mesh.nodes[mesh.elements[:, :corners]].mean(axis=1)
     incidence = _incidence(mesh)
-    membrane = membrane_forces(solution)
     cuts = {g.name: cut_line(plan, solution, g, incidence, centroids, membrane) for g in plan.grid_lines}
     chords = outline_edge_chords(plan, solution)
     per_case = []
