@@ -71,6 +71,9 @@ def test_published_torsion_example(plan_from):
     # J = 4.5·49.5² + 5.5·40.5² + 2·4·30² = 27,247.5 (the example prints 27,248).
     inherent = result.cases["E+y"].wall_forces
     assert inherent["A"] / KIP == pytest.approx(45.0 + 100 * 4.5 * 49.5 * 4.5 / 27247.5, rel=1e-9)
+    # Torsional irregularity measure: Taly's check gives δmax/δavg = 11.69/10.18 = 1.148 < 1.2
+    # (VALIDATION.md 6.3); the exact end displacements give 11.635/10.149 = 1.1465.
+    assert result.cases["E+y-ecc"].extra["torsional_ratio"] == pytest.approx(1.148, abs=0.003)
     # +ecc puts the mass on the center of rigidity: no torsion at all.
     centred = result.cases["E+y+ecc"].wall_forces
     assert centred["A"] / KIP == pytest.approx(45.0, rel=1e-9)
