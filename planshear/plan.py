@@ -151,7 +151,7 @@ class Member:
     t_from: float
     t_to: float
     EA: float  # N
-    effective_width: float  # m, membrane strip counted with the bar force
+    effective_width: float  # m, total width of the membrane strip centred on the line, counted with the bar
 
 
 @dataclass(frozen=True, eq=False)

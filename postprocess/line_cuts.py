@@ -174,21 +174,38 @@ def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.
     strip = np.zeros_like(values)
     width = max((m.effective_width for m in plan.members if m.line == grid_line.name), default=0.0)
     if width > 0 and membrane is not None:
-        strip = _strip_force(mesh, membrane, elements, e, width, centroids, grid_line, stations)
+        strip = _strip_force(mesh, membrane, e, width, centroids, grid_line, stations)
     return LineCut(grid_line.name, t, tributary, from_left, from_right, applied, wall, stations,
                    values, strip, running, residual, bool(on_line_edges))
 
 
-def _strip_force(mesh, membrane, elements, e, width, centroids, grid_line, stations) -> np.ndarray:
-    """Membrane force along the line within ``width`` (N): the axial membrane force
-    e·N·e of the elements touching the line, averaged near each station, times width."""
-    n_e = membrane[elements]  # (m, 3, c)
-    axial = n_e[:, 0] * e[0] ** 2 + n_e[:, 1] * e[1] ** 2 + 2 * n_e[:, 2] * e[0] * e[1]
-    t_el = (centroids[elements] - grid_line.origin) @ e
+def _strip_force(mesh, membrane, e, width, centroids, grid_line, stations) -> np.ndarray:
+    """Membrane force along the line within a strip of total ``width`` centred on it (N):
+    ∫ e·N·e across the strip, from the elements whose centroid lies in the strip near each
+    station (area-weighted mean of e·N·e times the strip width present; at the outline only
+    the half on the diaphragm exists)."""
+    corners = 3 if mesh.element_type.startswith("tri") else 4
+    xy = mesh.nodes[mesh.elements[:, :corners]]
+    area = 0.5 * np.abs(np.sum(xy[..., 0] * np.roll(xy[..., 1], -1, axis=1)
+                               - np.roll(xy[..., 0], -1, axis=1) * xy[..., 1], axis=1))
+    normal = np.array([-e[1], e[0]])
+    rel = centroids - grid_line.origin
+    across = rel @ normal
+    band = np.flatnonzero(np.abs(across) <= 0.5 * width)
+    if len(band) == 0:
+        return np.zeros((len(stations), membrane.shape[2]))
+    n_b = membrane[band]  # (m, 3, c)
+    axial = n_b[:, 0] * e[0] ** 2 + n_b[:, 1] * e[1] ** 2 + 2 * n_b[:, 2] * e[0] * e[1]
+    along = rel[band] @ e
+    window = 1.5 * np.sqrt(2.0 * np.median(area[band]))  # about one and a half elements
     result = np.zeros((len(stations), axial.shape[1]))
     for i, s in enumerate(stations):
-        near = np.argsort(np.abs(t_el - s))[:4]
-        result[i] = axial[near].mean(axis=0) * width
+        near = np.abs(along - s) <= window
+        if not np.any(near):
+            continue
+        weights = area[band][near]
+        sides = 0.5 * width * (np.any(across[band][near] > 0) + np.any(across[band][near] < 0))
+        result[i] = (weights @ axial[near]) / weights.sum() * sides
     return result
 
 

@@ -249,3 +249,29 @@ def test_unit_shear_and_chord_force_of_a_simple_span(plan_from):
     assert top.peak / KIP == pytest.approx(5.0, rel=0.03)
     assert top.peak_position / FT == pytest.approx(50.0, abs=5.0)
     assert case.chords["edge 1"].peak / KIP == pytest.approx(-5.0, rel=0.03)
+
+
+def test_effective_width_strip_force_matches_beam_theory(plan_from):
+    """A 200 × 50 ft cracked concrete slab without chord bars, simply supported on stiff
+    end walls, 100 kip in y: M = wL²/8 = 2500 k·ft and the edge fibre carries
+    N_x = 6M/d² = 6 k/ft (Euler–Bernoulli, plane sections; statics). A member on the edge
+    line with effective_width = 4 ft counts the 2 ft of slab on the diaphragm side:
+    ∫₀² N_x dn = 6 · 2 · (1 − 2/50) = 11.52 k at midspan (compression), within 2 %."""
+    walls = wall("W1", "1", 0, 50, "1e5 kip/in") + wall("W2", "2", 0, 50, "1e5 kip/in") \
+        + wall("WB", "B", 95, 105, "50 kip/in")
+    member = '\n[[member]]\nrole = "chord"\nline = "A"\nEA = "1 kip"\neffective_width = 4\n'
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "50 psf"
+        total = "100 kip"
+        directions = ["y"]
+        eccentricity = 0
+        ''')
+    concrete = '{ kind = "concrete", E = "3600 ksi", thickness = "5 in", cracked = 0.25 }'
+    text = box(length=200, walls=walls + member, load=load, material=concrete, mesh_size=2.5)
+    plan = plan_from(text.replace('chord_EA = "28050 kip"\n', ""))
+    line = semirigid_analysis(plan, expand_load_cases(plan)).result.cases["E+y"].lines["A"]
+    at_midspan = np.interp(100 * FT, line.stations, line.collector) / KIP
+    assert at_midspan == pytest.approx(-6 * 2 * (1 - 2 / 50), rel=0.02)
