@@ -245,6 +245,9 @@ def test_unit_shear_and_chord_force_of_a_simple_span(plan_from):
     assert line.reaction / KIP == pytest.approx(10.0, rel=1e-6)  # wL/2
     # The diaphragm delivers all but the load that sits on the line's own nodes.
     assert line.delivered / KIP == pytest.approx(10.0, rel=0.01)
+    # The unit-shear field (element averages) peaks next to a support at v = wL/(2d).
+    assert case.max_unit_shear / (KIP / FT) == pytest.approx(0.2, rel=0.03)
+    assert min(case.max_unit_shear_at[0], 100 * FT - case.max_unit_shear_at[0]) / FT < 5.0
     top = case.chords["edge 3"]
     assert top.peak / KIP == pytest.approx(5.0, rel=0.03)
     assert top.peak_position / FT == pytest.approx(50.0, abs=5.0)
