@@ -28,7 +28,7 @@ from .elements import (
 )
 from .solver import factorize
 
-__all__ = ["Assembly", "Solution", "FEError", "assemble", "load_vectors", "solve"]
+__all__ = ["Assembly", "Solution", "FEError", "assemble", "depends_on_load_axis", "load_vectors", "solve"]
 
 #: Largest relative residual ‖K u − f‖ / ‖f‖ accepted after a solve.
 RESIDUAL_LIMIT = 1e-8
@@ -96,14 +96,28 @@ def element_dofs(connectivity: np.ndarray) -> np.ndarray:
     return np.stack([2 * connectivity, 2 * connectivity + 1], axis=-1).reshape(len(connectivity), -1)
 
 
-def element_rigidities(plan: Plan, mesh: Mesh, factor: float = 1.0) -> np.ndarray:
+def element_rigidities(plan: Plan, mesh: Mesh, factor: float = 1.0, load_axis: str | None = None) -> np.ndarray:
     """Rigidity matrix D (n_e, 3, 3) of every element from its zone's material; ``factor``
-    scales the whole membrane (used for the stiffness sensitivity bounds)."""
+    scales the whole membrane (used for the stiffness sensitivity bounds). For loads along
+    ``load_axis`` ("x" or "y"), materials with a normal rigidity across the depth
+    (``Material.Et_across_depth``: wood panels and steel deck, whose framing carries loads
+    across the diaphragm) use it in that direction; None keeps Et_x and Et_y as given."""
     materials: list[Material] = [plan.material] + [z.material for z in plan.zones]
     table = np.array([[m.Et_x, m.Et_y, m.nu, m.Gt] for m in materials])
+    if load_axis is not None:
+        column = 0 if load_axis == "x" else 1
+        for row, m in enumerate(materials):
+            if m.Et_across_depth is not None:
+                table[row, column] = m.Et_across_depth
     per_element = table[mesh.element_zone + 1]
     D = membrane_rigidity(per_element[:, 0], per_element[:, 1], per_element[:, 2], per_element[:, 3])
     return D * factor
+
+
+def depends_on_load_axis(plan: Plan) -> bool:
+    """Whether the membrane differs between loads along x and along y (then the model is
+    assembled and factorized once per load axis)."""
+    return any(m.Et_across_depth is not None for m in [plan.material] + [z.material for z in plan.zones])
 
 
 def _coo_to_csr(blocks: list[tuple[np.ndarray, np.ndarray]], n: int) -> sp.csr_matrix:
@@ -140,10 +154,11 @@ def assemble_blocks(n_dofs: int, connectivities: list[np.ndarray], blocks: list[
     return _coo_to_csr([(element_dofs(c), b) for c, b in zip(connectivities, blocks, strict=True)], n_dofs)
 
 
-def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
-    """Membrane, chord and collector bars and wall springs in one sparse matrix (N/m)."""
+def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0, load_axis: str | None = None) -> Assembly:
+    """Membrane, chord and collector bars and wall springs in one sparse matrix (N/m), for
+    loads along ``load_axis`` (see :func:`element_rigidities`; None: rigidities as given)."""
     n = mesh.n_dofs
-    D = element_rigidities(plan, mesh, stiffness_factor)
+    D = element_rigidities(plan, mesh, stiffness_factor, load_axis)
     element_matrices = membrane_matrices(mesh.element_type, mesh.nodes, mesh.elements, D)
     dofs = [element_dofs(mesh.elements)]
     blocks = [element_matrices]

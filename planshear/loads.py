@@ -113,7 +113,7 @@ class LoadCase:
 def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
     """Seismic weight (N) and center of mass (m) of ``load``: area weight over the
     outline less openings (zone overrides replace it inside their zone) + line weights
-    + point weights."""
+    + point weights, each spread over its footprint."""
     areas = []
     remainder = plan.region
     for zone in plan.zones:
@@ -126,7 +126,11 @@ def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
     for line_name, t0, t1, q in load.line_weights:
         grid_line = plan.line(line_name)
         lines.append((grid_line.point(t0), grid_line.point(t1), q))
-    field = ForceField(np.zeros(2), tuple(areas), tuple(lines), tuple(load.point_weights))
+    # A point weight acts as a uniform pressure over its footprint (see plan.DEFAULT_FOOTPRINT).
+    for (_, _, weight), footprint in zip(load.point_weights, load.point_footprints, strict=True):
+        if weight:
+            areas.append((footprint, weight / footprint.area))
+    field = ForceField(np.zeros(2), tuple(areas), tuple(lines), ())
     total = field.total()
     return SeismicWeight(total, field.centroid() if total > 0 else np.zeros(2), field)
 
@@ -224,7 +228,10 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                 # Wind from either side loads different edges of an irregular plan.
                 fields = []
                 for sign in (+1, -1):
-                    lines = tuple((a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis, sign))
+                    # Windward faces push, leeward faces pull: both act along the wind.
+                    lines = tuple((a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis, sign)
+                                  if load.intensity) + tuple(
+                        (a, b, load.leeward * f) for a, b, f in windward_segments(plan, axis, -sign) if load.leeward)
                     edge_field = ForceField(sign * AXES[axis], (), lines, ())
                     fields.append((sign, edge_field, edge_field.total(), edge_field.centroid()))
             eccentricity = load.eccentricity * plan_dimension_across(plan, axis)

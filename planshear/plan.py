@@ -62,6 +62,17 @@ MEMBER_ROLES = ("chord", "collector")
 #: diaphragm's flexure (as the SDPWS deflection equation assumes), while a non-zero
 #: axial rigidity keeps the membrane from having zero-energy stretching modes.
 DEFAULT_AXIAL_RATIO = 0.1
+#: Default ratio of the normal rigidity across the diaphragm depth (along the load) to
+#: Gt for the wood-panel and steel-deck presets: framing, blocking and the sheathing in
+#: bearing carry loads across the depth without measurable shortening, which is what
+#: SDPWS Eq. 4.2-1 and the beam analogy assume. With 0.1·Gt in that direction an edge or
+#: line load would crush the membrane (several times the code deflection); at 100·Gt the
+#: difference from an area load is about 0.1 % (tests/test_load_introduction.py).
+DEFAULT_DEPTH_RATIO = 100.0
+#: Default side of the square over which a point weight acts (m, about 4 ft): a point
+#: force on a membrane has unbounded displacement under it, while real equipment and
+#: framing deliver the force over a curb or a framing bay.
+DEFAULT_FOOTPRINT = 1.2
 #: Default cracked-section factor for concrete diaphragms (0.25 of gross for
 #: nonprestressed slabs; see VALIDATION.md 7.3, an ASCE-published effective-stiffness table).
 DEFAULT_CRACKED = 0.25
@@ -81,6 +92,9 @@ class Material:
     nu: float
     Gt: float
     description: str
+    #: Normal rigidity (N/m) along the load, i.e. across the diaphragm depth, used in place
+    #: of Et_x (loads along x) or Et_y (loads along y); None: Et_x and Et_y as given.
+    Et_across_depth: float | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -165,9 +179,11 @@ class Load:
     zone_area_weight: dict[str, float] = field(default_factory=dict)
     line_weights: tuple[tuple[str, float, float, float], ...] = ()  # (line, t0, t1, N/m)
     point_weights: tuple[tuple[float, float, float], ...] = ()  # (x, y, N)
+    point_footprints: tuple[Polygon, ...] = ()  # where each point weight acts (m), on the diaphragm
     total: float | None = None
     fpx: tuple[float, float, float] | None = None  # (SDS, Ie, ratio)
-    intensity: float = 0.0  # N/m, edge loads
+    intensity: float = 0.0  # N/m per unit of plan width, edge loads: on the windward faces
+    leeward: float = 0.0  # N/m per unit of plan width, edge loads: on the leeward faces
     eccentricity: float = 0.05
     collector_overstrength: float = 1.0
 
@@ -294,6 +310,17 @@ class _PlanBuilder:
             self.problem(where, f"must be {'positive' if not allow_zero else 'zero or positive'}, got {value}")
             return None
         return float(value)
+
+    def footprint(self, raw: object, where: str) -> tuple[float, float] | None:
+        """Sides (m) of the rectangle a point weight acts over: a number (a square) or
+        [along x, along y] in the plan's length unit; default :data:`DEFAULT_FOOTPRINT`."""
+        if raw is None:
+            return DEFAULT_FOOTPRINT, DEFAULT_FOOTPRINT
+        sides = [raw, raw] if isinstance(raw, (int, float)) else list(raw)
+        if len(sides) != 2 or not all(isinstance(v, (int, float)) and math.isfinite(v) and v > 0 for v in sides):
+            self.problem(where, f"must be a positive side length in {self.unit} (a square) or [side along x, side along y], got {raw}")
+            return None
+        return float(sides[0]) * self.scale, float(sides[1]) * self.scale
 
     def points(self, raw: list, where: str) -> np.ndarray | None:
         array = np.asarray(raw, dtype=float)
@@ -435,8 +462,8 @@ class _PlanBuilder:
     def material(self, raw: dict, where: str) -> Material | None:
         kind = raw["kind"]
         allowed = {
-            "wood-panel": ({"Ga"}, {"axial_ratio"}),
-            "steel-deck": ({"G_prime"}, {"axial_ratio"}),
+            "wood-panel": ({"Ga"}, {"axial_ratio", "depth_ratio"}),
+            "steel-deck": ({"G_prime"}, {"axial_ratio", "depth_ratio"}),
             "concrete": ({"E", "thickness"}, {"nu", "cracked"}),
             "custom": ({"Et_x", "Et_y", "Gt"}, {"nu"}),
         }
@@ -465,10 +492,18 @@ class _PlanBuilder:
             if not (math.isfinite(ratio) and ratio > 0):
                 self.problem(where + ".axial_ratio", f"must be a positive number, got {ratio}")
                 return None
+            depth_ratio = float(raw.get("depth_ratio", DEFAULT_DEPTH_RATIO))
+            if not (math.isfinite(depth_ratio) and depth_ratio >= ratio):
+                self.problem(where + ".depth_ratio", f"must be a number at least equal to axial_ratio ({ratio:g}), got {depth_ratio}; "
+                             f"the default {DEFAULT_DEPTH_RATIO:g} keeps the diaphragm from shortening across its depth")
+                return None
             if gt is None:
                 return None
             source = "SDPWS apparent shear stiffness, G·t = 1000·Ga lb/in for Ga in kip/in" if kind == "wood-panel" else "AISI S310 / SDI shear stiffness G′ (G·t = G′)"
-            return Material(kind, ratio * gt, ratio * gt, 0.0, gt, f"{kind}: Gt = {key} ({source}); Et = {ratio:g}·Gt in both directions so that the chords carry the flexure")
+            return Material(kind, ratio * gt, ratio * gt, 0.0, gt,
+                            f"{kind}: Gt = {key} ({source}); Et = {ratio:g}·Gt along the span so that the chords carry "
+                            f"the flexure, {depth_ratio:g}·Gt across the depth (along the load: framing and sheathing in bearing)",
+                            depth_ratio * gt)
         if kind == "concrete":
             E = self.quantity(raw["E"], PRESSURE, where + ".E")
             t = self.quantity(raw["thickness"], LENGTH, where + ".thickness")
@@ -692,16 +727,29 @@ class _PlanBuilder:
                 if misplaced:
                     self.problem(where, f'{", ".join(misplaced)} apply to seismic loads only; an edge load takes "intensity"')
                     continue
-                if "intensity" not in entry:
-                    self.problem(where, 'an edge load needs "intensity" (force per length of plan edge facing the load), e.g. "0.3 kip/ft"')
+                given = [k for k in ("intensity", "windward", "leeward") if k in entry]
+                if "intensity" in entry and len(given) > 1:
+                    self.problem(where, 'give either "intensity" (all on the windward faces) or "windward" and "leeward" '
+                                 '(each per unit of plan width), not both')
                     continue
-                intensity = self.quantity(entry["intensity"], LINE_LOAD, where + ".intensity")
-                if intensity is None or ecc is None or omega is None:
+                if not given:
+                    self.problem(where, 'an edge load needs "intensity" (force per unit of plan width, applied on the faces '
+                                 'the wind reaches first), e.g. "0.3 kip/ft", or "windward" and "leeward" to split it')
                     continue
-                loads.append(Load(load_name, kind, directions, intensity=intensity, eccentricity=ecc, collector_overstrength=omega))
+                windward_key = "intensity" if "intensity" in entry else "windward"
+                intensity = (self.quantity(entry[windward_key], LINE_LOAD, f"{where}.{windward_key}", positive=windward_key == "intensity")
+                             if windward_key in entry else 0.0)
+                leeward = self.quantity(entry["leeward"], LINE_LOAD, where + ".leeward", positive=False) if "leeward" in entry else 0.0
+                if intensity is None or leeward is None or ecc is None or omega is None:
+                    continue
+                if intensity + leeward <= 0:
+                    self.problem(where, "the edge load is zero; give a positive intensity")
+                    continue
+                loads.append(Load(load_name, kind, directions, intensity=intensity, leeward=leeward, eccentricity=ecc,
+                                  collector_overstrength=omega))
                 continue
-            if "intensity" in entry:
-                self.problem(where, '"intensity" applies to edge loads only; a seismic load takes weights')
+            if {"intensity", "windward", "leeward"} & set(entry):
+                self.problem(where, '"intensity", "windward" and "leeward" apply to edge loads only; a seismic load takes weights')
                 continue
             area_weight = self.quantity(entry["area_weight"], AREA_LOAD, where + ".area_weight", positive=False) if "area_weight" in entry else 0.0
             zone_weights = {}
@@ -721,17 +769,26 @@ class _PlanBuilder:
                     continue
                 line, t0, t1 = located
                 line_weights.append((line.name, t0, t1, q))
-            point_weights = []
+            point_weights, footprints = [], []
             for j, pw in enumerate(entry.get("point_weight", [])):
                 pw_where = f"{where}.point_weight #{j + 1}"
                 q = self.quantity(pw["weight"], FORCE, pw_where + ".weight", positive=False)
                 at = self.points(pw["at"], pw_where + ".at")
-                if q is None or at is None:
+                footprint = self.footprint(pw.get("footprint"), pw_where + ".footprint")
+                if q is None or at is None or footprint is None:
                     continue
                 if not region.buffer(self.tol).covers(Point(at)):
                     self.problem(pw_where, "is not on the diaphragm (outside the outline or in an opening); move it")
                     continue
+                bx, by = footprint
+                square = shapely.box(at[0] - bx / 2, at[1] - by / 2, at[0] + bx / 2, at[1] + by / 2)
+                acting = square.intersection(region)
+                if acting.geom_type != "Polygon" or acting.area < 0.05 * square.area:
+                    self.problem(pw_where, "its footprint covers too little of the diaphragm or falls in pieces (near an "
+                                 "opening or a corner); move the weight or give a smaller footprint")
+                    continue
                 point_weights.append((float(at[0]), float(at[1]), q))
+                footprints.append(shapely.set_precision(acting, 0.0))
             has_total, has_fpx = "total" in entry, "fpx" in entry
             if has_total == has_fpx:
                 self.problem(where, 'give exactly one of "total" (the diaphragm force) or "fpx" = { SDS, Ie, ratio } (ASCE 7-16 Eq. 12.10-1)')
@@ -751,7 +808,8 @@ class _PlanBuilder:
                 continue
             loads.append(
                 Load(load_name, kind, directions, area_weight=area_weight, zone_area_weight=zone_weights,
-                     line_weights=tuple(line_weights), point_weights=tuple(point_weights), total=total, fpx=fpx,
+                     line_weights=tuple(line_weights), point_weights=tuple(point_weights),
+                     point_footprints=tuple(footprints), total=total, fpx=fpx,
                      eccentricity=ecc, collector_overstrength=omega)
             )
         if not raw:

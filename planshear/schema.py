@@ -33,6 +33,7 @@ MATERIAL = {
         "Et_y": QUANTITY,
         "Gt": QUANTITY,
         "axial_ratio": NUMBER,
+        "depth_ratio": NUMBER,
     },
     "additionalProperties": False,
 }
@@ -177,7 +178,11 @@ PLAN_SCHEMA: dict = {
                         "items": {
                             "type": "object",
                             "required": ["at", "weight"],
-                            "properties": {"at": POINT, "weight": QUANTITY},
+                            "properties": {
+                                "at": POINT,
+                                "weight": QUANTITY,
+                                "footprint": {"oneOf": [NUMBER, POINT]},
+                            },
                             "additionalProperties": False,
                         },
                     },
@@ -189,6 +194,8 @@ PLAN_SCHEMA: dict = {
                         "additionalProperties": False,
                     },
                     "intensity": QUANTITY,
+                    "windward": QUANTITY,
+                    "leeward": QUANTITY,
                     "eccentricity": NUMBER,
                     "collector_overstrength": NUMBER,
                 },
