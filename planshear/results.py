@@ -182,6 +182,9 @@ def classification_to_json(classification, units: OutputUnits) -> dict | None:
         return None
     out = {
         "criterion": "ASCE 7-16 §12.3.1.3: may be idealized as flexible when MDD/ADVE > 2",
+        "MDD_definition": "largest in-plane deflection of the diaphragm averaged across its depth (section through the "
+                          "plan, openings excluded) relative to the straight line between the support drifts; MDD_at = "
+                          "station and mid-depth; MDD_local = largest nodal value (information only, not classified on)",
         "idealized_flexible_stated": classification.idealized_flexible,
         "idealized_rigid_stated": classification.idealized_rigid,
         "directions": {},
@@ -199,6 +202,8 @@ def classification_to_json(classification, units: OutputUnits) -> dict | None:
                     "span": f"{span.left_line}-{span.right_line}",
                     "MDD": _r(units.displacement_out(span.mdd)),
                     "MDD_at": [_r(units.length_out(c)) for c in span.mdd_at],
+                    "MDD_local": _r(units.displacement_out(span.mdd_local)),
+                    "MDD_local_at": [_r(units.length_out(c)) for c in span.mdd_local_at],
                     "ADVE": _r(units.displacement_out(span.adve)),
                     "ratio": _r(span.ratio) if np.isfinite(span.ratio) else None,
                     "flexible": span.flexible,

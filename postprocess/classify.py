@@ -4,8 +4,12 @@ For each load direction and each span between adjacent lines of resistance:
 
 * support drift Δ of a line = the average drift (force / stiffness) of its walls, along
   the load;
-* MDD = the largest displacement of the diaphragm within the span, along the load,
-  relative to the straight line between the two supports' drifts;
+* at each station s of the span, the diaphragm's displacement along the load averaged
+  across its depth (the section through the real plan, openings and notches excluded;
+  :mod:`planshear.postprocess.sections`), relative to the straight line between the two
+  supports' drifts; MDD = the largest of these, at its station. The largest nodal value
+  (at a wall end, an opening corner or under a concentrated load) is kept as
+  ``mdd_local`` for information and never classified on;
 * ADVE = (Δ_left + Δ_right) / 2;
 * the span may be idealized as flexible when MDD / ADVE > 2 (§12.3.1.3).
 
@@ -25,6 +29,8 @@ import numpy as np
 from planshear.fem import Solution
 from planshear.plan import Plan
 
+from .sections import section_average
+
 __all__ = ["SpanCheck", "DirectionCheck", "Classification", "classify", "BEHAVIOUR_LIMIT"]
 
 #: Below this MDD/ADVE the diaphragm is labelled "rigid-like" for information only (this
@@ -32,16 +38,25 @@ __all__ = ["SpanCheck", "DirectionCheck", "Classification", "classify", "BEHAVIO
 BEHAVIOUR_LIMIT = 0.5
 
 
-@dataclass(frozen=True)
+#: Stations per span at which the depth-averaged deflection is evaluated (then refined
+#: around the largest one).
+STATIONS_PER_SPAN = 80
+
+
+@dataclass(frozen=True, eq=False)
 class SpanCheck:
     axis: str
     case: str
     left_line: str
     right_line: str
-    mdd: float  # m
-    mdd_at: tuple[float, float]  # m
+    mdd: float  # m, largest depth-averaged deflection relative to the supports' drift line
+    mdd_at: tuple[float, float]  # m, station on the span's axis and mid-depth of the section there
     adve: float  # m
     ratio: float
+    mdd_local: float = 0.0  # m, largest nodal deflection relative to the same line (information)
+    mdd_local_at: tuple[float, float] = (0.0, 0.0)  # m
+    stations: np.ndarray | None = None  # (n,) m along the span axis
+    deflection: np.ndarray | None = None  # (n,) m, depth-averaged, relative to the drift line
 
     @property
     def flexible(self) -> bool:
@@ -99,6 +114,27 @@ def _line_drift(plan: Plan, solution: Solution, line: str, j: int, direction: np
     return float(np.mean(drifts))
 
 
+def _section_extent(plan: Plan, s_index: int, s: float) -> tuple[float, float, float]:
+    """Length of the diaphragm cut at s and the cut's extent (min, max) across (m)."""
+    from .beam_analogy import sections
+
+    length, lo, hi = sections(plan, plan.region, s_index, np.array([s]))
+    return float(length[0]), float(lo[0]), float(hi[0])
+
+
+def _relative(mesh, plan: Plan, along: np.ndarray, s_index: int, stations: np.ndarray, s0: float, s1: float,
+              drift_left: np.ndarray, drift_right: np.ndarray) -> np.ndarray:
+    """Depth-averaged displacement along the load at each station (n_s, n_cases), less the
+    straight line between the support drifts (m)."""
+    # Stations exactly on the span ends are nudged inside: the section there may run along
+    # an outline edge, which would be cut ambiguously.
+    eps = 1e-7 * (s1 - s0)
+    probe = np.clip(stations, s0 + eps, s1 - eps)
+    average, _ = section_average(mesh, along, plan.region, s_index, probe)
+    line = drift_left[None, :] + (drift_right - drift_left)[None, :] * ((stations - s0) / (s1 - s0))[:, None]
+    return average - line
+
+
 def classify(plan: Plan, solution: Solution) -> Classification:
     """MDD/ADVE per span and direction from the semi-rigid solution (see module docs)."""
     from planshear.idealized import lines_of_resistance
@@ -121,19 +157,40 @@ def classify(plan: Plan, solution: Solution) -> Classification:
         lo, hi = plan.outline[:, s_index].min(), plan.outline[:, s_index].max()
         if supports and (supports[0][1] > lo + 1e-9 or supports[-1][1] < hi - 1e-9):
             notes.append("parts of the diaphragm beyond the end lines (cantilevers) are not classified")
-        for j, case in base:
-            direction = case.direction
-            u = solution.node_displacements(j) @ direction
-            drift = {name: _line_drift(plan, solution, name, j, direction) for name, _, _ in supports}
-            for (left, s0, _), (right, s1, _) in zip(supports[:-1], supports[1:], strict=True):
-                inside = (s_nodes >= s0) & (s_nodes <= s1)
-                base_line = drift[left] + (drift[right] - drift[left]) * (s_nodes[inside] - s0) / (s1 - s0)
-                relative = u[inside] - base_line
-                k = int(np.argmax(np.abs(relative)))
-                mdd = float(abs(relative[k]))
-                adve = 0.5 * (abs(drift[left]) + abs(drift[right]))
+        columns = [j for j, _ in base]
+        directions_of = np.array([c.direction for _, c in base])  # (n_base, 2)
+        along = np.einsum("ndc,cd->nc", solution.displacements.reshape(-1, 2, len(solution.cases))[:, :, columns],
+                          directions_of)  # (n_nodes, n_base) displacement along each case's load
+        drift = {name: np.array([_line_drift(plan, solution, name, j, c.direction) for j, c in base])
+                 for name, _, _ in supports}
+        t_index = 1 - s_index
+        for (left, s0, _), (right, s1, _) in zip(supports[:-1], supports[1:], strict=True):
+            stations = np.linspace(s0, s1, STATIONS_PER_SPAN + 1)
+            relative = _relative(mesh, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
+            # Refine around the largest value of each case (the curve is smooth there).
+            step = (s1 - s0) / STATIONS_PER_SPAN
+            peaks = stations[np.argmax(np.abs(relative), axis=0)]
+            fine = np.unique(np.clip(np.concatenate([p + np.linspace(-step, step, 21) for p in peaks]), s0, s1))
+            stations = np.unique(np.concatenate([stations, fine]))
+            relative = _relative(mesh, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
+            inside = (s_nodes >= s0) & (s_nodes <= s1)
+            for column, (_, case) in enumerate(base):
+                k = int(np.argmax(np.abs(relative[:, column])))
+                mdd = float(abs(relative[k, column]))
+                adve = float(0.5 * (abs(drift[left][column]) + abs(drift[right][column])))
                 ratio = mdd / adve if adve > 0 else float("inf")
-                where = mesh.nodes[np.flatnonzero(inside)[k]]
-                spans.append(SpanCheck(axis, case.name, left, right, mdd, (float(where[0]), float(where[1])), adve, ratio))
+                _, lo_t, hi_t = _section_extent(plan, s_index, stations[k])
+                where = np.zeros(2)
+                where[s_index], where[t_index] = stations[k], 0.5 * (lo_t + hi_t)
+                # The largest nodal value, for information (a local peak, not the code's MDD).
+                nodes = np.flatnonzero(inside)
+                line = drift[left][column] + (drift[right][column] - drift[left][column]) * (s_nodes[nodes] - s0) / (s1 - s0)
+                local = along[nodes, column] - line
+                n = int(np.argmax(np.abs(local)))
+                spans.append(SpanCheck(
+                    axis, case.name, left, right, mdd, (float(where[0]), float(where[1])), adve, ratio,
+                    float(abs(local[n])), tuple(float(c) for c in mesh.nodes[nodes[n]]),
+                    stations, relative[:, column].copy(),
+                ))
         directions[axis] = DirectionCheck(axis, tuple(spans), tuple(notes))
     return Classification(directions, plan.classification.idealized_flexible, plan.classification.idealized_rigid)

@@ -1,0 +1,110 @@
+"""Finite-element fields sampled along straight cuts through the plan.
+
+The diaphragm's own deflection at a station of a span is the in-plane displacement
+averaged across the diaphragm depth there: along the section through the real plan
+(openings and notches excluded). This module evaluates the finite-element displacement
+at points (point location with an R-tree of the element polygons, natural coordinates of
+straight-sided elements, the elements' own shape functions) and averages it along
+sections.
+
+Array conventions: stations (n_s,) in m; displacement fields (n_nodes, 2, n_cases) or
+(n_nodes, n_cases) per component; results (n_s, n_cases). All SI.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import shapely
+
+from planshear.fem.elements import shape_functions
+from planshear.mesh import Mesh
+
+__all__ = ["interpolate", "section_average", "SAMPLES_PER_SECTION"]
+
+#: Sample points per section (midpoints of equal parts of the length present). The field
+#: is smooth along a cut except at element boundaries, so the midpoint rule converges
+#: as 1/n²; 160 points keep the average within about 0.05 % on the test spans.
+SAMPLES_PER_SECTION = 160
+
+
+def _corners(mesh: Mesh) -> int:
+    return 3 if mesh.element_type.startswith("tri") else 4
+
+
+def _locate(mesh: Mesh, points: np.ndarray) -> np.ndarray:
+    """Element index (n,) containing each point (−1 where none does)."""
+    corners = _corners(mesh)
+    polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
+    tree = shapely.STRtree(polygons)
+    hits = tree.query(shapely.points(points), predicate="intersects")
+    found = np.full(len(points), -1)
+    # A point on a shared edge or node lies in several elements: any one gives the same value.
+    unique, first = np.unique(hits[0], return_index=True)
+    found[unique] = hits[1][first]
+    return found
+
+
+def _natural(mesh: Mesh, elements: np.ndarray, points: np.ndarray) -> np.ndarray:
+    """Reference coordinates (n, 2) of points inside straight-sided elements: barycentric
+    for triangles, Newton on the bilinear corner map for quadrilaterals (their mid-side
+    nodes lie at mid-side, so the map of every quadrilateral kind is that bilinear map)."""
+    xy = mesh.nodes[mesh.elements[elements, : _corners(mesh)]]
+    if mesh.element_type.startswith("tri"):
+        a = np.stack([xy[:, 1] - xy[:, 0], xy[:, 2] - xy[:, 0]], axis=-1)  # (n, 2, 2)
+        return np.linalg.solve(a, (points - xy[:, 0])[..., None])[..., 0]
+    ref = np.zeros((len(points), 2))
+    for _ in range(12):
+        N, dN = shape_functions("quad4", ref)
+        # Each point has its own reference coordinates: take the matching row.
+        mapped = np.einsum("pn,pnd->pd", N, xy)
+        jac = np.einsum("pnr,pnd->pdr", dN, xy)
+        step = np.linalg.solve(jac, (points - mapped)[..., None])[..., 0]
+        ref += step
+        if np.max(np.abs(step)) < 1e-12:
+            break
+    return ref
+
+
+def interpolate(mesh: Mesh, field: np.ndarray, points: np.ndarray) -> np.ndarray:
+    """Nodal ``field`` (n_nodes, ...) evaluated at ``points`` (n, 2) with the elements'
+    shape functions: array (n, ...). Points outside the mesh give NaN."""
+    finite = np.all(np.isfinite(points), axis=1)
+    element = np.full(len(points), -1)
+    element[finite] = _locate(mesh, points[finite])
+    inside = element >= 0
+    result = np.full((len(points),) + field.shape[1:], np.nan)
+    if not np.any(inside):
+        return result
+    ref = _natural(mesh, element[inside], points[inside])
+    N, _ = shape_functions(mesh.element_type, ref)  # (n_in, n_nodes_e)
+    values = field[mesh.elements[element[inside]]]  # (n_in, n_nodes_e, ...)
+    result[inside] = np.einsum("pn,pn...->p...", N, values)
+    return result
+
+
+def section_points(region, s_index: int, stations: np.ndarray, samples: int = SAMPLES_PER_SECTION):
+    """Sample points (n_s, samples, 2) at the midpoints of ``samples`` equal parts of the
+    length of ``region`` cut at each station s, and that length (n_s,) in m."""
+    bounds = np.asarray(region.bounds)
+    t_index = 1 - s_index
+    lo, hi = bounds[t_index] - 1.0, bounds[t_index + 2] + 1.0
+    coords = np.zeros((len(stations), 2, 2))
+    coords[:, :, s_index] = stations[:, None]
+    coords[:, 0, t_index], coords[:, 1, t_index] = lo, hi
+    cuts = shapely.intersection(region, shapely.linestrings(coords))
+    lengths = shapely.length(cuts)
+    fractions = (np.arange(samples) + 0.5) / samples
+    # Interpolation along a multi-part cut skips the gaps between its parts.
+    points = shapely.line_interpolate_point(cuts[:, None], fractions[None, :], normalized=True)
+    xy = np.stack([shapely.get_x(points), shapely.get_y(points)], axis=-1)  # NaN where a cut is empty
+    return xy, lengths
+
+
+def section_average(mesh: Mesh, field: np.ndarray, region, s_index: int, stations: np.ndarray,
+                    samples: int = SAMPLES_PER_SECTION) -> tuple[np.ndarray, np.ndarray]:
+    """Average of the nodal ``field`` (n_nodes, n_cases) along the section of ``region``
+    at each station s (the coordinate with index ``s_index``): (n_s, n_cases), and the
+    section length (n_s,) in m."""
+    xy, lengths = section_points(region, s_index, stations, samples)
+    values = interpolate(mesh, field, xy.reshape(-1, 2)).reshape(len(stations), samples, *field.shape[1:])
+    return np.nanmean(values, axis=1), lengths
