@@ -17,7 +17,7 @@ from matplotlib.collections import PolyCollection
 from matplotlib.figure import Figure
 
 __all__ = ["STYLE", "FigureFile", "plan_figure", "collector_figure", "chord_figure", "shear_map_figure",
-           "deflected_figure", "save"]
+           "deflected_figure", "span_deflection_figure", "save"]
 
 STYLE = {
     "flexible": {"color": "#b35806", "linestyle": (0, (6, 2)), "marker": "s"},
@@ -206,4 +206,41 @@ def deflected_figure(plan, mesh, displacement: np.ndarray, case: str, units: dic
     ax.autoscale_view()
     ax.set_aspect("equal")
     ax.set_title(f"Deflected shape, semi-rigid, {case} (magnified ×{magnify:.3g}; dashed: undeformed)", fontsize=9)
+    return fig
+
+
+def span_deflection_figure(plan, spans, case: str, axis: str, units: dict, disp_factor: float) -> Figure:
+    """The diaphragm's own deflection along the span for one load case (ASCE 7-16
+    §12.3.1.3): in each span between lines of resistance, the displacement along the load
+    averaged across the depth, relative to the straight line between the support drifts.
+    MDD is marked where it occurs (filled marker, value and MDD/ADVE); the largest nodal
+    value of the span (a local peak at a wall end, corner or load) is marked hollow and is
+    not used for the classification."""
+    scale = 1.0 / plan.length_scale
+    fig, ax = _figure(7.5, 4.2)
+    style = STYLE["semirigid"]
+    s_index = 0 if axis == "y" else 1
+    for span in spans:
+        s = span.stations * scale
+        ax.plot(s, span.deflection * disp_factor, color=style["color"], lw=1.4)
+        k = int(np.argmin(np.abs(span.stations - span.mdd_at[s_index])))
+        value = span.deflection[k] * disp_factor
+        ax.plot([s[k]], [value], marker="o", color=style["color"], ms=6)
+        ax.annotate(f"MDD {abs(value):.3g} {units['displacement']}\nMDD/ADVE {span.ratio:.3g}",
+                    (s[k], value), textcoords="offset points", xytext=(0, 10 if value >= 0 else -22),
+                    ha="center", fontsize=7, color=INK)
+        local_s = span.mdd_local_at[s_index] * scale
+        local = span.mdd_local * disp_factor * (1 if value >= 0 else -1)
+        ax.plot([local_s], [local], marker="o", mfc="none", color=WALL, ms=6, ls="none")
+        for line, at in ((span.left_line, s[0]), (span.right_line, s[-1])):
+            ax.axvline(at, color=GRID, lw=0.8, ls=":")
+            ax.annotate(line, (at, 0), textcoords="offset points", xytext=(2, 2), fontsize=7, color=GRID)
+    ax.axhline(0.0, color=INK, lw=0.6)
+    ax.margins(y=0.3)  # room for the MDD labels
+    ax.plot([], [], marker="o", mfc="none", color=WALL, ls="none", label="largest nodal value (local, not classified on)")
+    ax.plot([], [], color=style["color"], marker="o", label="averaged across the depth; MDD marked")
+    ax.legend(fontsize=7, loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=2, frameon=False)
+    ax.set_xlabel(f"{'x' if axis == 'y' else 'y'} ({plan.length_unit})", fontsize=8)
+    ax.set_ylabel(f"deflection relative to supports ({units['displacement']})", fontsize=8)
+    ax.set_title(f"Diaphragm deflection along the span, semi-rigid, {case} (load along {axis})", fontsize=9)
     return fig

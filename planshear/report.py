@@ -25,6 +25,7 @@ from .figures import (
     plan_figure,
     save,
     shear_map_figure,
+    span_deflection_figure,
 )
 
 __all__ = ["write_review_package", "write_tables", "METHODS_TEXT", "LIMITATIONS_TEXT"]
@@ -94,6 +95,11 @@ def _table(headers: list[str], rows: list[list], cls: str = "") -> str:
     return f'<table class="{cls}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>'
 
 
+def _at(point) -> str:
+    """A plan position as "(x, y)" for a table cell."""
+    return "" if not point else f"({point[0]:.4g}, {point[1]:.4g})"
+
+
 def _base_cases(doc: dict) -> dict[str, str]:
     """One representative base case per direction (the first seismic, else the first)."""
     kinds = {name: load["kind"] for name, load in doc["plan"]["loads"].items()}
@@ -136,8 +142,10 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     rows = []
     for axis, check in classification["directions"].items():
         for span in check["spans"]:
-            rows.append([axis, span["case"], span["span"], span["MDD"], span["ADVE"], span["ratio"], span["behaviour"]])
-    tables["classification"] = (["load along", "case", "span", f"MDD ({d})", f"ADVE ({d})", "MDD/ADVE", "behaviour"], rows)
+            rows.append([axis, span["case"], span["span"], span["MDD"], span["ADVE"], span["ratio"], span["behaviour"],
+                         _at(span.get("MDD_at")), span.get("MDD_local"), _at(span.get("MDD_local_at"))])
+    tables["classification"] = (["load along", "case", "span", f"MDD ({d})", f"ADVE ({d})", "MDD/ADVE", "behaviour",
+                                 "MDD at (x, y)", f"local nodal peak ({d}), not used", "peak at (x, y)"], rows)
     envelope = doc.get("envelope") or {"walls": {}, "collectors": {}, "chords": {}}
     methods = list(doc["assumptions"])
     rows = []
@@ -212,9 +220,11 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
     for axis, check in ((doc.get("classification") or {}).get("directions") or {}).items():
         for span in check["spans"]:
             rows.append([axis, span["case"], span["span"], span["MDD"], span["ADVE"], span["ratio"],
-                         span["flexible"], span["behaviour"], check["verdict"]])
+                         span["flexible"], span["behaviour"], check["verdict"], *(span.get("MDD_at") or ["", ""]),
+                         span.get("MDD_local"), *(span.get("MDD_local_at") or ["", ""])])
     write("classification.csv", ["direction", "case", "span", f"MDD [{d}]", f"ADVE [{d}]", "ratio [-]",
-                                 "flexible", "behaviour", "verdict"], rows)
+                                 "flexible", "behaviour", "verdict", "MDD_x", "MDD_y", f"MDD_local [{d}]",
+                                 "MDD_local_x", "MDD_local_y"], rows)
     return written
 
 
@@ -277,6 +287,15 @@ def _figures(doc: dict, results, folder: Path, pdf: PdfPages) -> dict[str, list[
             keep("deflected", deflected_figure(results.plan, results.semirigid.mesh, solution.node_displacements(j),
                                                case_name, doc["units"], units.displacement_out(1.0)),
                  f"deflected_{_slug(case_name)}", f"Deflected shape, {case_name}")
+    if results.classification is not None:
+        for axis, check in results.classification.directions.items():
+            by_case: dict[str, list] = {}
+            for span in check.spans:
+                by_case.setdefault(span.case, []).append(span)
+            for case_name, spans in by_case.items():
+                keep("deflected", span_deflection_figure(results.plan, spans, case_name, axis, doc["units"],
+                                                         results.units.displacement_out(1.0)),
+                     f"span_deflection_{_slug(case_name)}", f"Diaphragm deflection along the span (MDD), {case_name}")
     return made
 
 
