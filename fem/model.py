@@ -28,7 +28,7 @@ from .elements import (
 )
 from .solver import factorize
 
-__all__ = ["Assembly", "Solution", "FEError", "assemble", "depends_on_load_axis", "load_vectors", "solve"]
+__all__ = ["Assembly", "Solution", "FEError", "assemble", "load_vectors", "solve"]
 
 #: Largest relative residual ‖K u − f‖ / ‖f‖ accepted after a solve.
 RESIDUAL_LIMIT = 1e-8
@@ -96,28 +96,14 @@ def element_dofs(connectivity: np.ndarray) -> np.ndarray:
     return np.stack([2 * connectivity, 2 * connectivity + 1], axis=-1).reshape(len(connectivity), -1)
 
 
-def element_rigidities(plan: Plan, mesh: Mesh, factor: float = 1.0, load_axis: str | None = None) -> np.ndarray:
+def element_rigidities(plan: Plan, mesh: Mesh, factor: float = 1.0) -> np.ndarray:
     """Rigidity matrix D (n_e, 3, 3) of every element from its zone's material; ``factor``
-    scales the whole membrane (used for the stiffness sensitivity bounds). For loads along
-    ``load_axis`` ("x" or "y"), materials with a normal rigidity across the depth
-    (``Material.Et_across_depth``: wood panels and steel deck, whose framing carries loads
-    across the diaphragm) use it in that direction; None keeps Et_x and Et_y as given."""
+    scales the whole membrane (used for the stiffness sensitivity bounds)."""
     materials: list[Material] = [plan.material] + [z.material for z in plan.zones]
     table = np.array([[m.Et_x, m.Et_y, m.nu, m.Gt] for m in materials])
-    if load_axis is not None:
-        column = 0 if load_axis == "x" else 1
-        for row, m in enumerate(materials):
-            if m.Et_across_depth is not None:
-                table[row, column] = m.Et_across_depth
     per_element = table[mesh.element_zone + 1]
     D = membrane_rigidity(per_element[:, 0], per_element[:, 1], per_element[:, 2], per_element[:, 3])
     return D * factor
-
-
-def depends_on_load_axis(plan: Plan) -> bool:
-    """Whether the membrane differs between loads along x and along y (then the model is
-    assembled and factorized once per load axis)."""
-    return any(m.Et_across_depth is not None for m in [plan.material] + [z.material for z in plan.zones])
 
 
 def _coo_to_csr(blocks: list[tuple[np.ndarray, np.ndarray]], n: int) -> sp.csr_matrix:
@@ -154,11 +140,10 @@ def assemble_blocks(n_dofs: int, connectivities: list[np.ndarray], blocks: list[
     return _coo_to_csr([(element_dofs(c), b) for c, b in zip(connectivities, blocks, strict=True)], n_dofs)
 
 
-def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0, load_axis: str | None = None) -> Assembly:
-    """Membrane, chord and collector bars and wall springs in one sparse matrix (N/m), for
-    loads along ``load_axis`` (see :func:`element_rigidities`; None: rigidities as given)."""
+def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
+    """Membrane, chord and collector bars and wall springs in one sparse matrix (N/m)."""
     n = mesh.n_dofs
-    D = element_rigidities(plan, mesh, stiffness_factor, load_axis)
+    D = element_rigidities(plan, mesh, stiffness_factor)
     element_matrices = membrane_matrices(mesh.element_type, mesh.nodes, mesh.elements, D)
     dofs = [element_dofs(mesh.elements)]
     blocks = [element_matrices]
@@ -222,9 +207,9 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.n
     n = mesh.n_dofs
     f = np.zeros(n)
     pressure = np.zeros(len(mesh.elements))
+    cells = element_polygons(mesh) if field_.areas else None
     for geometry, p in field_.areas:
-        inside = shapely.contains_xy(geometry.buffer(tol), centroids[:, 0], centroids[:, 1])
-        pressure += np.where(inside, p, 0.0)
+        pressure += p * area_fractions(cells, geometry, centroids, tol)
     if np.any(pressure):
         np.add.at(f, dofs.ravel(), area_load(mesh.element_type, mesh.nodes[mesh.elements], pressure, field_.direction).ravel())
     for start, end, q in field_.lines:
@@ -241,6 +226,29 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.n
             node = int(np.argmin(np.hypot(mesh.nodes[:, 0] - x, mesh.nodes[:, 1] - y)))
         f[2 * node : 2 * node + 2] += p * field_.direction
     return f
+
+
+def element_polygons(mesh: Mesh) -> tuple[np.ndarray, shapely.STRtree]:
+    """Corner polygons of all elements (straight-sided) and an R-tree over them."""
+    corners = 3 if mesh.element_type.startswith("tri") else 4
+    polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
+    return polygons, shapely.STRtree(polygons)
+
+
+def area_fractions(cells: tuple[np.ndarray, shapely.STRtree], geometry, centroids: np.ndarray, tol: float) -> np.ndarray:
+    """Share (n_e,) of each element's area (``cells`` from :func:`element_polygons`) inside
+    ``geometry``: 1 or 0 by the centroid for
+    elements that the geometry's boundary does not cross (zones and the outline follow
+    element edges), the exact polygon overlap for those it crosses (loads spread across the
+    depth and point-weight footprints need not follow the mesh), so that the total of an
+    area load is exact on any mesh."""
+    polygons, tree = cells
+    inside = shapely.contains_xy(geometry.buffer(tol), centroids[:, 0], centroids[:, 1]).astype(float)
+    crossed = np.unique(tree.query(geometry.boundary, predicate="crosses"))
+    if len(crossed):
+        cells = polygons[crossed]
+        inside[crossed] = shapely.area(shapely.intersection(cells, geometry)) / shapely.area(cells)
+    return inside
 
 
 def _torsion_vector(f: np.ndarray, mesh: Mesh, direction: np.ndarray, torsion: float) -> np.ndarray:

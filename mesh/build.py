@@ -2,7 +2,7 @@
 
 The diaphragm is split (with shapely) into the main material and the zones, each a
 polygon with holes for the openings. Every grid-line piece over the diaphragm, every
-wall, member and line-weight end, every point weight and the sides of its footprint are fragmented into the surfaces
+wall, member and line-weight end and every point weight is fragmented into the surfaces
 with gmsh's OpenCASCADE kernel, so that they become element edges and nodes. gmsh runs
 quietly (no terminal output, no GUI, no files) on one thread, so the same plan gives the
 same mesh.
@@ -172,13 +172,8 @@ def _surface_pieces(plan: Plan) -> list[tuple[Polygon, int]]:
 
 
 def _line_pieces(plan: Plan, tol: float) -> list[tuple[np.ndarray, np.ndarray]]:
-    """Every grid line over the diaphragm, cut into its pieces inside the region, and the
-    sides of every point weight's footprint (so that its pressure covers whole elements)."""
+    """Every grid line over the diaphragm, cut into its pieces inside the region."""
     pieces = []
-    for load in plan.loads:
-        for footprint in load.point_footprints:
-            ring = np.asarray(footprint.exterior.coords)
-            pieces += [(a, b) for a, b in zip(ring[:-1], ring[1:], strict=True) if np.hypot(*(b - a)) > tol]
     for grid_line in plan.grid_lines:
         segment = grid_line.segment(grid_line.t_min, grid_line.t_max)
         inside = segment.intersection(plan.region)

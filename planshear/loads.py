@@ -28,6 +28,7 @@ __all__ = [
     "seismic_weight",
     "fpx_force",
     "windward_segments",
+    "spread_across_depth",
     "expand_load_cases",
 ]
 
@@ -110,10 +111,9 @@ class LoadCase:
         return self.sign * AXES[self.axis]
 
 
-def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
-    """Seismic weight (N) and center of mass (m) of ``load``: area weight over the
-    outline less openings (zone overrides replace it inside their zone) + line weights
-    + point weights, each spread over its footprint."""
+def _weight_parts(plan: Plan, load: Load):
+    """Area weights (region, N/m²), line weights (start, end, N/m) and point weights
+    (x, y, N, footprint) of a seismic load."""
     areas = []
     remainder = plan.region
     for zone in plan.zones:
@@ -126,13 +126,89 @@ def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
     for line_name, t0, t1, q in load.line_weights:
         grid_line = plan.line(line_name)
         lines.append((grid_line.point(t0), grid_line.point(t1), q))
-    # A point weight acts as a uniform pressure over its footprint (see plan.DEFAULT_FOOTPRINT).
-    for (_, _, weight), footprint in zip(load.point_weights, load.point_footprints, strict=True):
-        if weight:
-            areas.append((footprint, weight / footprint.area))
+    points = [(x, y, p, footprint) for (x, y, p), footprint in zip(load.point_weights, load.point_footprints, strict=True)
+              if p]
+    return areas, lines, points
+
+
+def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
+    """Seismic weight (N) and center of mass (m) of ``load``: area weight over the
+    outline less openings (zone overrides replace it inside their zone) + line weights
+    + point weights, each over its footprint."""
+    areas, lines, points = _weight_parts(plan, load)
+    areas += [(footprint, p / footprint.area) for _, _, p, footprint in points]
     field = ForceField(np.zeros(2), tuple(areas), tuple(lines), ())
     total = field.total()
     return SeismicWeight(total, field.centroid() if total > 0 else np.zeros(2), field)
+
+
+def spread_across_depth(plan: Plan, start: np.ndarray, end: np.ndarray, force: float, axis: str):
+    """A force ``force`` (N) along ``axis``, uniform along the segment start–end, carried
+    across the depth of the diaphragm along its line of action: at each station s of the
+    segment's extent across the load, its share is spread uniformly over the part of the
+    section that the segment belongs to (the piece of diaphragm between openings or notches
+    that it touches). This is how framing and the sheathing in bearing deliver an edge load,
+    a wall weight or a piece of equipment to the diaphragm, and what the beam analogy
+    assumes; it keeps a membrane that is soft across the depth (Et = 0.1·Gt) from being
+    crushed at the line. Returns ((polygon, pressure N/m²), …), exact for pieces whose
+    section length is constant between the plan's vertices (the pressure is constant in each
+    band between vertex stations), or None when the segment runs along the load (a
+    tangential line load, which stays a line load)."""
+    s_index = 0 if axis == "y" else 1
+    t_index = 1 - s_index
+    size = float(np.ptp(plan.outline, axis=0).max())
+    s0, s1 = sorted((float(start[s_index]), float(end[s_index])))
+    if s1 - s0 <= 1e-7 * size:
+        return None
+    coords = shapely.get_coordinates(plan.region)
+    knots = np.unique(np.concatenate([[s0, s1], coords[:, s_index]]))
+    knots = knots[(knots >= s0) & (knots <= s1)]
+    lo, hi = coords[:, t_index].min() - 1.0, coords[:, t_index].max() + 1.0
+    segment = LineString([start, end])
+    pieces = []
+    for a, b in zip(knots[:-1], knots[1:], strict=True):
+        if b - a <= 1e-9 * size:
+            continue
+        band = shapely.box(a, lo, b, hi) if s_index == 0 else shapely.box(lo, a, hi, b)
+        parts = [g for g in getattr(plan.region.intersection(band), "geoms", [plan.region.intersection(band)])
+                 if isinstance(g, Polygon) and g.area > 0]
+        if not parts:
+            continue
+        here = segment.intersection(band)
+        touching = [g for g in parts if g.distance(here) <= 1e-7 * size] or [min(parts, key=lambda g: g.distance(here))]
+        share = force * (b - a) / (s1 - s0)
+        area = sum(g.area for g in touching)
+        pieces += [(g, share / area) for g in touching]
+    return tuple(pieces)
+
+
+def _spread_lines(plan: Plan, lines, axis: str):
+    """Line loads (start, end, N/m) along ``axis``: those across the load as spread areas,
+    those along it kept as lines. Returns (areas, lines)."""
+    areas, kept = [], []
+    for a, b, q in lines:
+        spread = spread_across_depth(plan, a, b, q * float(np.hypot(*(b - a))), axis)
+        if spread is None:
+            kept.append((a, b, q))
+        else:
+            areas += spread
+    return areas, kept
+
+
+def _seismic_field(plan: Plan, load: Load, axis: str) -> ForceField:
+    """The seismic weight as a force field along +axis (N per unit weight), with line
+    weights across the load and point weights spread across the depth along their line of
+    action (see :func:`spread_across_depth`)."""
+    areas, lines, points = _weight_parts(plan, load)
+    spread, kept = _spread_lines(plan, lines, axis)
+    s_index = 0 if axis == "y" else 1
+    for x, y, p, footprint in points:
+        at = np.array([x, y])
+        lo, hi = footprint.bounds[s_index], footprint.bounds[s_index + 2]
+        a, b = at.copy(), at.copy()
+        a[s_index], b[s_index] = lo, hi
+        spread += spread_across_depth(plan, a, b, p, axis)
+    return ForceField(AXES[axis], tuple(areas + spread), tuple(kept), ())
 
 
 def fpx_force(wpx: float, SDS: float, Ie: float, ratio: float) -> tuple[float, str]:
@@ -214,25 +290,25 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                 force, _ = fpx_force(weight.total, *load.fpx)
             else:
                 force = float(load.total)
-            base_field = weight.field
             base_total = weight.total
             center = weight.center
         else:
-            base_field, base_total, force, center = None, 0.0, 0.0, None
+            base_total, force, center = 0.0, 0.0, None
         for axis in load.directions:
             if load.kind == "seismic":
                 # A seismic field reverses exactly, so only +axis is analyzed.
-                fields = [(+1, ForceField(AXES[axis], base_field.areas, base_field.lines,
-                                          base_field.points).scaled(force / base_total), force, center)]
+                fields = [(+1, _seismic_field(plan, load, axis).scaled(force / base_total), force, center)]
             else:
-                # Wind from either side loads different edges of an irregular plan.
+                # Wind from either side loads different faces of an irregular plan: windward
+                # faces push, leeward faces pull, both along the wind, each spread across
+                # the depth of the piece of diaphragm the face belongs to.
                 fields = []
                 for sign in (+1, -1):
-                    # Windward faces push, leeward faces pull: both act along the wind.
-                    lines = tuple((a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis, sign)
-                                  if load.intensity) + tuple(
-                        (a, b, load.leeward * f) for a, b, f in windward_segments(plan, axis, -sign) if load.leeward)
-                    edge_field = ForceField(sign * AXES[axis], (), lines, ())
+                    lines = [(a, b, load.intensity * f) for a, b, f in windward_segments(plan, axis, sign)
+                             if load.intensity] + [
+                        (a, b, load.leeward * f) for a, b, f in windward_segments(plan, axis, -sign) if load.leeward]
+                    areas, kept = _spread_lines(plan, lines, axis)
+                    edge_field = ForceField(sign * AXES[axis], tuple(areas), tuple(kept), ())
                     fields.append((sign, edge_field, edge_field.total(), edge_field.centroid()))
             eccentricity = load.eccentricity * plan_dimension_across(plan, axis)
             for sign, field, case_force, case_center in fields:

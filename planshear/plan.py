@@ -62,13 +62,6 @@ MEMBER_ROLES = ("chord", "collector")
 #: diaphragm's flexure (as the SDPWS deflection equation assumes), while a non-zero
 #: axial rigidity keeps the membrane from having zero-energy stretching modes.
 DEFAULT_AXIAL_RATIO = 0.1
-#: Default ratio of the normal rigidity across the diaphragm depth (along the load) to
-#: Gt for the wood-panel and steel-deck presets: framing, blocking and the sheathing in
-#: bearing carry loads across the depth without measurable shortening, which is what
-#: SDPWS Eq. 4.2-1 and the beam analogy assume. With 0.1·Gt in that direction an edge or
-#: line load would crush the membrane (several times the code deflection); at 100·Gt the
-#: difference from an area load is about 0.1 % (tests/test_load_introduction.py).
-DEFAULT_DEPTH_RATIO = 100.0
 #: Default side of the square over which a point weight acts (m, about 4 ft): a point
 #: force on a membrane has unbounded displacement under it, while real equipment and
 #: framing deliver the force over a curb or a framing bay.
@@ -92,9 +85,6 @@ class Material:
     nu: float
     Gt: float
     description: str
-    #: Normal rigidity (N/m) along the load, i.e. across the diaphragm depth, used in place
-    #: of Et_x (loads along x) or Et_y (loads along y); None: Et_x and Et_y as given.
-    Et_across_depth: float | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -462,8 +452,8 @@ class _PlanBuilder:
     def material(self, raw: dict, where: str) -> Material | None:
         kind = raw["kind"]
         allowed = {
-            "wood-panel": ({"Ga"}, {"axial_ratio", "depth_ratio"}),
-            "steel-deck": ({"G_prime"}, {"axial_ratio", "depth_ratio"}),
+            "wood-panel": ({"Ga"}, {"axial_ratio"}),
+            "steel-deck": ({"G_prime"}, {"axial_ratio"}),
             "concrete": ({"E", "thickness"}, {"nu", "cracked"}),
             "custom": ({"Et_x", "Et_y", "Gt"}, {"nu"}),
         }
@@ -492,18 +482,10 @@ class _PlanBuilder:
             if not (math.isfinite(ratio) and ratio > 0):
                 self.problem(where + ".axial_ratio", f"must be a positive number, got {ratio}")
                 return None
-            depth_ratio = float(raw.get("depth_ratio", DEFAULT_DEPTH_RATIO))
-            if not (math.isfinite(depth_ratio) and depth_ratio >= ratio):
-                self.problem(where + ".depth_ratio", f"must be a number at least equal to axial_ratio ({ratio:g}), got {depth_ratio}; "
-                             f"the default {DEFAULT_DEPTH_RATIO:g} keeps the diaphragm from shortening across its depth")
-                return None
             if gt is None:
                 return None
             source = "SDPWS apparent shear stiffness, G·t = 1000·Ga lb/in for Ga in kip/in" if kind == "wood-panel" else "AISI S310 / SDI shear stiffness G′ (G·t = G′)"
-            return Material(kind, ratio * gt, ratio * gt, 0.0, gt,
-                            f"{kind}: Gt = {key} ({source}); Et = {ratio:g}·Gt along the span so that the chords carry "
-                            f"the flexure, {depth_ratio:g}·Gt across the depth (along the load: framing and sheathing in bearing)",
-                            depth_ratio * gt)
+            return Material(kind, ratio * gt, ratio * gt, 0.0, gt, f"{kind}: Gt = {key} ({source}); Et = {ratio:g}·Gt in both directions so that the chords carry the flexure")
         if kind == "concrete":
             E = self.quantity(raw["E"], PRESSURE, where + ".E")
             t = self.quantity(raw["thickness"], LENGTH, where + ".thickness")

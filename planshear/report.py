@@ -44,11 +44,11 @@ METHODS_TEXT = [
     ("Beam analogy", "Shear and moment along the span from loads and wall forces; unit shear = V / length of "
      "diaphragm present; collector force = running sum of delivered shear minus wall reaction; chord force = M / depth."),
     ("Semi-rigid", "Plane-stress membrane (quadratic triangles by default) with per-unit-width rigidities: wood "
-     "panels G·t = Ga (SDPWS), steel deck G·t = G′ (AISI S310), both soft along the span (chords carry the "
-     "flexure) and stiff across the depth (framing delivers edge, line and point loads without crushing the "
-     "sheathing), concrete E·t with a cracked-section factor; point weights act over their footprint; "
+     "panels G·t = Ga (SDPWS), steel deck G·t = G′ (AISI S310), concrete E·t with a cracked-section factor; "
+     "wind on the faces, wall weights across the load and point weights spread across the depth along their "
+     "line of action (no crushing of the membrane); "
      "walls as springs along the wall only, total equal to the wall stiffness; chords and collectors as bars; "
-     "one sparse factorization for every case (per load axis for wood panels and steel deck). Verified against Cook's membrane, MacNeal–Harder (1985), "
+     "one sparse factorization for every case. Verified against Cook's membrane, MacNeal–Harder (1985), "
      "scikit-fem and the SDPWS deflection equation (see the test suite)."),
     ("Line cuts", "Shear delivered from each side of a line from the element nodal forces (exact equilibrium); "
      "collector force = bar force plus the membrane force within the stated effective width."),

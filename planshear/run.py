@@ -173,7 +173,6 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
                 "Et_y": round(units.stiffness_out(m.Et_y), 6),
                 "nu": m.nu,
                 "Gt": round(units.stiffness_out(m.Gt), 6),
-                "Et_across_depth": None if m.Et_across_depth is None else round(units.stiffness_out(m.Et_across_depth), 6),
                 "description": m.description,
             }
             for name, m in [("main", plan.material)] + [(z.name, z.material) for z in plan.zones]

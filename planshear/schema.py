@@ -33,7 +33,6 @@ MATERIAL = {
         "Et_y": QUANTITY,
         "Gt": QUANTITY,
         "axial_ratio": NUMBER,
-        "depth_ratio": NUMBER,
     },
     "additionalProperties": False,
 }

@@ -12,7 +12,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from .fem import Solution, assemble, load_vectors, solve
-from .fem.model import depends_on_load_axis
 from .loads import LoadCase
 from .mesh import Mesh, build_mesh
 from .plan import Plan
@@ -24,40 +23,12 @@ __all__ = ["SemirigidRun", "semirigid_analysis"]
 
 @dataclass(frozen=True, eq=False)
 class SemirigidRun:
-    """The semi-rigid result and what produced it. ``solution`` holds every case's
-    displacements, loads and wall forces; its ``assembly`` is the one of the first load
-    axis (bars, springs and mesh are common to all; the membrane rigidity may differ by
-    load axis, so membrane forces come from ``membrane``, computed per axis)."""
+    """The semi-rigid result and what produced it."""
 
     result: MethodResult
     mesh: Mesh
     solution: Solution
     membrane: np.ndarray  # (n_e, 3, n_cases) N/m: Nx, Ny, Nxy at element centroids
-
-
-def _merge(selected: list[LoadCase], solutions: list[Solution], membranes: list[np.ndarray],
-           per_case_groups: list[list]) -> tuple[Solution, np.ndarray, list]:
-    """One Solution, membrane array and per-case list in the order of ``selected`` from
-    the per-axis solves."""
-    if len(solutions) == 1:
-        return solutions[0], membranes[0], per_case_groups[0]
-    position = {c.name: (g, j) for g, s in enumerate(solutions) for j, c in enumerate(s.cases)}
-    picks = [position[c.name] for c in selected]
-
-    def gather(arrays: list[np.ndarray]) -> np.ndarray:
-        return np.stack([arrays[g][..., j] for g, j in picks], axis=-1)
-
-    first = solutions[0]
-    merged = Solution(
-        first.assembly,
-        tuple(selected),
-        gather([s.loads for s in solutions]),
-        gather([s.displacements for s in solutions]),
-        {wall: gather([s.wall_forces[wall] for s in solutions]) for wall in first.wall_forces},
-        gather([s.residual for s in solutions]),
-        first.backend,
-    )
-    return merged, gather(membranes), [per_case_groups[g][j] for g, j in picks]
 
 
 def semirigid_analysis(
@@ -75,26 +46,15 @@ def semirigid_analysis(
     if mesh is None:
         report("meshing")
         mesh = build_mesh(plan)
-    # Wood panels and steel deck are stiff across the depth, i.e. along the load, and
-    # soft along the span: one assembly and factorization per load axis.
-    if depends_on_load_axis(plan):
-        groups = [(axis, [c for c in selected if c.axis == axis]) for axis in ("x", "y")]
-        groups = [(axis, group) for axis, group in groups if group]
-    else:
-        groups = [(None, selected)]
-    solutions, membranes, per_case_groups = [], [], []
-    for axis, group in groups:
-        which = f" for loads along {axis}" if axis else ""
-        report(f"assembling {mesh.n_dofs} degrees of freedom{which}")
-        assembly = assemble(plan, mesh, stiffness_factor, axis)
-        loads = load_vectors(plan, mesh, group)
-        report(f"factorizing and solving {len(group)} cases{which}")
-        solutions.append(solve(assembly, plan, group, loads))
-        report("line cuts")
-        membranes.append(membrane_forces(solutions[-1]))
-        per_case_groups.append(line_results_all_cases(plan, solutions[-1], membranes[-1]))
-    solution, membrane, per_case = _merge(selected, solutions, membranes, per_case_groups)
+    report(f"assembling {mesh.n_dofs} degrees of freedom")
+    assembly = assemble(plan, mesh, stiffness_factor)
+    loads = load_vectors(plan, mesh, selected)
+    report(f"factorizing and solving {len(selected)} cases")
+    solution = solve(assembly, plan, selected, loads)
+    report("line cuts")
     results = {}
+    membrane = membrane_forces(solution)
+    per_case = line_results_all_cases(plan, solution, membrane)
     for j, case in enumerate(selected):
         forces = {wall_id: float(f[j]) for wall_id, f in solution.wall_forces.items()}
         total = sum(forces[w.id] * w.direction for w in plan.walls)
@@ -118,8 +78,7 @@ def semirigid_analysis(
         )
     notes = [
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "
-        f"freedom, factorized {'once' if len(groups) == 1 else 'once per load axis'} ({solution.backend}) for "
-        f"{len(selected)} cases",
+        f"freedom, factorized once ({solution.backend}) for {len(selected)} cases",
     ]
     bare = sorted({name for lines, *_ in per_case for name, line in lines.items()
                    if line.has_member is False and any(w.line == name for w in plan.walls)})

@@ -25,6 +25,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import shapely
 
 from planshear.fem import Solution
 from planshear.plan import Plan
@@ -50,7 +51,7 @@ class SpanCheck:
     left_line: str
     right_line: str
     mdd: float  # m, largest depth-averaged deflection relative to the supports' drift line
-    mdd_at: tuple[float, float]  # m, station on the span's axis and mid-depth of the section there
+    mdd_at: tuple[float, float]  # m, station on the span's axis; across it, the middle of the section's longest piece
     adve: float  # m
     ratio: float
     mdd_local: float = 0.0  # m, largest nodal deflection relative to the same line (information)
@@ -114,12 +115,17 @@ def _line_drift(plan: Plan, solution: Solution, line: str, j: int, direction: np
     return float(np.mean(drifts))
 
 
-def _section_extent(plan: Plan, s_index: int, s: float) -> tuple[float, float, float]:
-    """Length of the diaphragm cut at s and the cut's extent (min, max) across (m)."""
-    from .beam_analogy import sections
-
-    length, lo, hi = sections(plan, plan.region, s_index, np.array([s]))
-    return float(length[0]), float(lo[0]), float(hi[0])
+def _point_on_section(plan: Plan, s_index: int, s: float) -> np.ndarray:
+    """A point on the diaphragm at station s (m): the middle of the longest piece of the
+    section there (the middle of the whole section could fall in an opening)."""
+    t_index = 1 - s_index
+    bounds = np.asarray(plan.region.bounds)
+    ends = np.zeros((2, 2))
+    ends[:, s_index] = s
+    ends[:, t_index] = bounds[t_index] - 1.0, bounds[t_index + 2] + 1.0
+    cut = plan.region.intersection(shapely.LineString(ends))
+    longest = max(getattr(cut, "geoms", [cut]), key=lambda g: g.length)
+    return np.asarray(longest.interpolate(0.5, normalized=True).coords[0])
 
 
 def _relative(mesh, plan: Plan, along: np.ndarray, s_index: int, stations: np.ndarray, s0: float, s1: float,
@@ -163,7 +169,6 @@ def classify(plan: Plan, solution: Solution) -> Classification:
                           directions_of)  # (n_nodes, n_base) displacement along each case's load
         drift = {name: np.array([_line_drift(plan, solution, name, j, c.direction) for j, c in base])
                  for name, _, _ in supports}
-        t_index = 1 - s_index
         for (left, s0, _), (right, s1, _) in zip(supports[:-1], supports[1:], strict=True):
             stations = np.linspace(s0, s1, STATIONS_PER_SPAN + 1)
             relative = _relative(mesh, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
@@ -179,9 +184,8 @@ def classify(plan: Plan, solution: Solution) -> Classification:
                 mdd = float(abs(relative[k, column]))
                 adve = float(0.5 * (abs(drift[left][column]) + abs(drift[right][column])))
                 ratio = mdd / adve if adve > 0 else float("inf")
-                _, lo_t, hi_t = _section_extent(plan, s_index, stations[k])
-                where = np.zeros(2)
-                where[s_index], where[t_index] = stations[k], 0.5 * (lo_t + hi_t)
+                where = _point_on_section(plan, s_index, float(np.clip(stations[k], s0 + 1e-7 * (s1 - s0),
+                                                                       s1 - 1e-7 * (s1 - s0))))
                 # The largest nodal value, for information (a local peak, not the code's MDD).
                 nodes = np.flatnonzero(inside)
                 line = drift[left][column] + (drift[right][column] - drift[left][column]) * (s_nodes[nodes] - s0) / (s1 - s0)
