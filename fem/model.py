@@ -30,8 +30,6 @@ from .solver import factorize
 
 __all__ = ["Assembly", "Solution", "FEError", "assemble", "load_vectors", "solve"]
 
-#: Largest relative residual ‖K u − f‖ / ‖f‖ accepted after a solve.
-RESIDUAL_LIMIT = 1e-8
 #: Elements processed per chunk when forming element matrices (bounds temporary memory).
 CHUNK = 50_000
 
@@ -84,8 +82,10 @@ class Solution:
     loads: np.ndarray  # (n_dofs, n_cases) N
     displacements: np.ndarray  # (n_dofs, n_cases) m
     wall_forces: dict[str, np.ndarray]  # id → (n_cases,) N along the wall
-    residual: np.ndarray  # (n_cases,) relative
+    residual: np.ndarray  # (n_cases,) ‖f − K u‖₂ / ‖f‖₂ (structural_residual)
     backend: str
+    backward_error: np.ndarray | None = None  # (n_cases,) ‖K u − f‖∞ / (‖K‖∞‖u‖∞ + ‖f‖∞)
+    equilibrium: np.ndarray | None = None  # (n_cases,) wall reactions vs. load, relative (wall_equilibrium)
 
     def node_displacements(self, case_index: int) -> np.ndarray:
         return self.displacements[:, case_index].reshape(-1, 2)
@@ -180,9 +180,8 @@ def _bar_group(name: str, role: str, edges: np.ndarray, EA: float, mesh: Mesh) -
 
 def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:
     """Consistent nodal loads (n_dofs, n_cases) in N: area, line and point parts of each
-    case's force field, plus the accidental torsion of the ±ecc cases distributed in
-    proportion to (nodal load × lever arm from the load's centroid), which adds a pure
-    moment F·e without changing the resultant."""
+    case's force field, plus the accidental torsion of the ±ecc cases as a pure moment
+    F·e about z (no net force; see :func:`torsion_vector` for how it is spread)."""
     n = mesh.n_dofs
     corners = 3 if mesh.element_type.startswith("tri") else 4
     centroids = mesh.nodes[mesh.elements[:, :corners]].mean(axis=1)
@@ -192,15 +191,77 @@ def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:
     edge_points = shapely.points(mesh.nodes[mesh.edges])
     loads = np.zeros((n, len(cases)))
     cache: dict[int, np.ndarray] = {}
+    area_share = None
     for j, case in enumerate(cases):
         key = id(case.field)
         if key not in cache:
             cache[key] = _field_vector(case.field, mesh, centroids, dofs, edge_points, tol)
         f = cache[key]
         if case.torsion != 0.0:
-            f = f + _torsion_vector(f, mesh, case.direction, case.torsion)
+            if area_share is None:
+                area_share = nodal_area(mesh)
+            f = f + torsion_vector(f, mesh.nodes, case.direction, case.torsion, area_share)[0]
         loads[:, j] = f
     return loads
+
+
+def nodal_area(mesh: Mesh) -> np.ndarray:
+    """Each node's share (n_nodes,) of the diaphragm area in m²: the consistent nodal load
+    of a unit pressure over every element (sums to the meshed area)."""
+    unit = area_load(mesh.element_type, mesh.nodes[mesh.elements], np.ones(len(mesh.elements)), np.array([1.0, 0.0]))
+    share = np.zeros(mesh.n_dofs)
+    np.add.at(share, element_dofs(mesh.elements).ravel(), unit.ravel())
+    return share[0::2]
+
+
+#: The accidental torsion follows the load's own distribution only while, at every loaded
+#: node, the added torsional force stays below the node's direct load (see torsion_vector).
+TORSION_SPREAD_LIMIT = 1.0
+
+
+def _moment_spread(weight: np.ndarray, nodes: np.ndarray, torsion: float) -> tuple[np.ndarray, float] | None:
+    """Nodal forces (n_nodes, 2) that add the moment ``torsion`` (N·m) about z and no net
+    force, in proportion to ``weight`` × lever arm about the weight's own centroid
+    (the inertial forces of a rotation); with the largest ratio of added force to a node's
+    own weight. None when the weight has no centroid or no polar moment."""
+    total = float(weight.sum())
+    if not np.isfinite(total) or total <= 0.0:
+        return None
+    center = (weight[:, None] * nodes).sum(axis=0) / total
+    arm = nodes - center
+    radius2 = arm[:, 0] ** 2 + arm[:, 1] ** 2
+    polar = float(np.sum(weight * radius2))
+    if not np.isfinite(polar) or polar <= 0.0:
+        return None
+    loaded = weight != 0.0
+    ratio = abs(torsion) * float(np.sqrt(radius2[loaded].max())) / polar
+    tangential = np.column_stack([-arm[:, 1], arm[:, 0]])
+    return torsion / polar * weight[:, None] * tangential, ratio
+
+
+def torsion_vector(
+    f: np.ndarray, nodes: np.ndarray, direction: np.ndarray, torsion: float, area_share: np.ndarray
+) -> tuple[np.ndarray, str]:
+    """Nodal forces (n_dofs,) in N that add the accidental torsion ``torsion`` (N·m, about
+    z) to the load ``f`` with no net force, and the basis used ("load" or "area").
+
+    The moment is spread as the inertial forces of a small rotation, force ∝ weight ×
+    lever arm: by the case's own load (weight) about its centroid when that load is spread
+    widely enough that the added force nowhere exceeds the node's direct load
+    (|T|·r_max / J_load ≤ :data:`TORSION_SPREAD_LIMIT`, i.e. e·r_max ≤ r_gyration², which
+    keeps the load's direction everywhere); otherwise (one point weight, a small footprint,
+    a short line: J_load → 0 would blow the forces up) by the diaphragm area about the
+    area's centroid. Either way the forces sum to zero and their moment is exactly T,
+    because the centroid and polar moment are those of the same nodal distribution."""
+    weight = f.reshape(-1, 2) @ direction  # signed nodal share of the load, N
+    spread = _moment_spread(weight, nodes, torsion)
+    basis = "load"
+    if spread is None or spread[1] > TORSION_SPREAD_LIMIT:
+        spread = _moment_spread(area_share, nodes, torsion)
+        basis = "area"
+        if spread is None:
+            raise FEError("the accidental torsion cannot be applied: the mesh has no area (internal meshing error)")
+    return spread[0].ravel(), basis
 
 
 def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.ndarray:
@@ -226,16 +287,6 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.n
             node = int(np.argmin(np.hypot(mesh.nodes[:, 0] - x, mesh.nodes[:, 1] - y)))
         f[2 * node : 2 * node + 2] += p * field_.direction
     return f
-
-
-def _torsion_vector(f: np.ndarray, mesh: Mesh, direction: np.ndarray, torsion: float) -> np.ndarray:
-    weight = f.reshape(-1, 2) @ direction  # signed nodal share of the load
-    total = weight.sum()
-    center = (weight[:, None] * mesh.nodes).sum(axis=0) / total
-    arm = mesh.nodes - center
-    polar = float(np.sum(weight * (arm[:, 0] ** 2 + arm[:, 1] ** 2)))
-    tangential = np.column_stack([-arm[:, 1], arm[:, 0]])
-    return (torsion / polar * weight[:, None] * tangential).ravel()
 
 
 def check_restraint(assembly: Assembly, plan: Plan) -> None:
@@ -278,8 +329,22 @@ def check_restraint(assembly: Assembly, plan: Plan) -> None:
         )
 
 
-#: Largest accepted ratio between the stiffest and the softest diagonal term of K.
+#: Largest accepted ratio between the stiffest and the softest diagonal term of K (and
+#: between the stiffest and softest part). Beyond it double precision (16 digits) keeps
+#: fewer than about 4 correct digits of the softer part's share of the answer.
 CONDITION_LIMIT = 1e12
+
+
+def _stiffness_parts(assembly: Assembly) -> dict[str, float]:
+    """Stiffness of each part of the model in N/m: walls, bars (EA over the plan size),
+    membrane shear and axial rigidity (largest and smallest over the elements)."""
+    extent = float(np.ptp(assembly.mesh.nodes, axis=0).max())
+    parts = {f'wall "{s.wall_id}"': s.stiffness for s in assembly.springs}
+    parts.update({f"{b.name}": b.EA / extent for b in assembly.bars})
+    parts["diaphragm membrane (shear)"] = float(np.min(assembly.rigidity[:, 2, 2]))
+    parts["diaphragm membrane (axial)"] = float(np.min(assembly.rigidity[:, 0, 0]))
+    parts["diaphragm membrane (stiffest shear)"] = float(np.max(assembly.rigidity[:, 2, 2]))
+    return parts
 
 
 def check_conditioning(assembly: Assembly, plan: Plan) -> None:
@@ -290,12 +355,7 @@ def check_conditioning(assembly: Assembly, plan: Plan) -> None:
     if np.any(~np.isfinite(diagonal)) or np.any(diagonal <= 0):
         raise FEError(f"{plan.source}: the stiffness matrix has a zero or non-finite diagonal term; "
                       "check for zero or infinite stiffness values")
-    extent = float(np.ptp(assembly.mesh.nodes, axis=0).max())
-    # Stiffness of each part of the model in N/m: walls, bars over the plan size, membrane.
-    parts = {f'wall "{s.wall_id}"': s.stiffness for s in assembly.springs}
-    parts.update({f"{b.name}": b.EA / extent for b in assembly.bars})
-    parts["diaphragm membrane (shear)"] = float(np.min(assembly.rigidity[:, 2, 2]))
-    parts["diaphragm membrane (axial)"] = float(np.min(assembly.rigidity[:, 0, 0]))
+    parts = _stiffness_parts(assembly)
     ratio = max(diagonal.max() / diagonal.min(), max(parts.values()) / min(parts.values()))
     if ratio <= CONDITION_LIMIT:
         return
@@ -308,32 +368,129 @@ def check_conditioning(assembly: Assembly, plan: Plan) -> None:
     )
 
 
+def backward_error(stiffness: sp.csr_matrix, norm_K: float, u: np.ndarray, f: np.ndarray) -> np.ndarray:
+    """Normwise backward error per case (n_cases,): ‖f − K u‖∞ / (‖K‖∞ ‖u‖∞ + ‖f‖∞), the
+    smallest relative change of K and f for which u is the exact solution (Rigal and
+    Gaches, 1967; Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed.,
+    Thm. 7.1). Unlike ‖r‖/‖f‖ it does not grow with the stiffness ratio of the model."""
+    residual = f - stiffness @ u
+    scale = norm_K * np.abs(u).max(axis=0) + np.abs(f).max(axis=0)
+    return np.abs(residual).max(axis=0) / np.maximum(scale, 1e-300)
+
+
+def wall_equilibrium(assembly: Assembly, displacements: np.ndarray, loads: np.ndarray) -> np.ndarray:
+    """Imbalance per case (n_cases,) between the wall springs' reactions and the applied
+    nodal loads: force along x and y and moment about z, the largest of |ΔFx|, |ΔFy| and
+    |ΔMz| / plan size, relative to Σ|f| (the membrane and bars carry no net force)."""
+    nodes = assembly.mesh.nodes
+    reactions = (assembly.spring_matrix @ displacements).reshape(-1, 2, displacements.shape[1])
+    applied = loads.reshape(-1, 2, loads.shape[1])
+    size = max(float(np.ptp(nodes, axis=0).max()), 1e-300)
+    center = nodes.mean(axis=0)
+    arm = nodes - center
+
+    def resultant(forces: np.ndarray) -> np.ndarray:  # (3, n_cases): Fx, Fy, Mz / size
+        moment = arm[:, 0:1] * forces[:, 1] - arm[:, 1:2] * forces[:, 0]
+        return np.vstack([forces[:, 0].sum(axis=0), forces[:, 1].sum(axis=0), moment.sum(axis=0) / size])
+
+    scale = np.maximum(np.abs(loads).sum(axis=0), 1e-300)
+    return np.abs(resultant(reactions) - resultant(applied)).max(axis=0) / scale
+
+
+def rigid_body_modes(nodes: np.ndarray) -> np.ndarray:
+    """Orthonormal rigid-body modes (n_dofs, 3) of the plan: the two translations and the
+    small rotation about the nodes' centroid."""
+    arm = nodes - nodes.mean(axis=0)
+    modes = np.zeros((2 * len(nodes), 3))
+    modes[0::2, 0] = 1.0
+    modes[1::2, 1] = 1.0
+    modes[0::2, 2] = -arm[:, 1]
+    modes[1::2, 2] = arm[:, 0]
+    return np.linalg.qr(modes)[0]
+
+
+def structural_residual(assembly: Assembly, modes: np.ndarray, u: np.ndarray, f: np.ndarray) -> np.ndarray:
+    """f − K u (n_dofs, n_cases) computed so that rounding does not grow with the
+    diaphragm-to-wall stiffness ratio: u is split into its rigid-body part u₀ and the rest,
+    and K u₀ is taken as K_walls u₀, because membrane and bars strain nothing under a
+    rigid-body motion (exactly, for isoparametric elements). Computed directly, K u₀ of a
+    near-rigid diaphragm carries rounding of about 1e-16 × (diaphragm stiffness /
+    wall stiffness) of the load, which no refinement could remove."""
+    rigid = modes @ (modes.T @ u)
+    return f - assembly.spring_matrix @ rigid - assembly.stiffness @ (u - rigid)
+
+
+#: Largest normwise backward error accepted after refinement (a backward-stable solve
+#: gives about 1e-16 times a small multiple of the matrix size).
+BACKWARD_ERROR_LIMIT = 1e-10
+#: Largest imbalance of wall reactions against the applied load, relative to the load.
+EQUILIBRIUM_LIMIT = 1e-6
+#: Iterative refinement steps at most (each is one solve with the existing factor).
+REFINEMENT_STEPS = 4
+
+
 def solve(assembly: Assembly, plan: Plan, cases: list[LoadCase], loads: np.ndarray) -> Solution:
-    """Factor once and solve every case; check the residual of each."""
+    """Factor once and solve every case, then improve each solution by iterative
+    refinement from the same factor (r = f − K u from :func:`structural_residual`,
+    u += K⁻¹ r, while it halves the residual) and accept it
+    only when its backward error is at most :data:`BACKWARD_ERROR_LIMIT` and the wall
+    reactions balance the applied load (force and moment) to :data:`EQUILIBRIUM_LIMIT`."""
     check_conditioning(assembly, plan)
     check_restraint(assembly, plan)
+    K = assembly.stiffness
     try:
-        factor = factorize(assembly.stiffness)
+        factor = factorize(K)
     except (RuntimeError, ValueError, np.linalg.LinAlgError) as exc:
         raise FEError(f"{plan.source}: the stiffness matrix could not be factorized ({exc}); the model is "
                       "singular: some part of the diaphragm can move without resistance") from None
-    displacements = factor.solve(loads)
+    displacements = np.asarray(factor.solve(loads)).reshape(loads.shape)
     if not np.all(np.isfinite(displacements)):
-        raise FEError("the solve produced non-finite displacements; the stiffness matrix is singular or "
-                      "badly conditioned (check for extreme stiffness ratios between walls, members and diaphragm)")
-    residual_vectors = assembly.stiffness @ displacements - loads
-    norms = np.maximum(np.linalg.norm(loads, axis=0), 1e-300)
-    residual = np.linalg.norm(residual_vectors, axis=0) / norms
-    if np.any(residual > RESIDUAL_LIMIT):
-        worst = cases[int(np.argmax(residual))].name
+        raise FEError(f"{plan.source}: the solve produced non-finite displacements; the stiffness matrix is singular "
+                      f"or nearly so ({_stiffness_spread(assembly)})")
+    norm_K = float(abs(K).sum(axis=1).max())
+    modes = rigid_body_modes(assembly.mesh.nodes)
+    accuracy = np.full(loads.shape[1], np.inf)
+    for _ in range(REFINEMENT_STEPS):
+        residual = structural_residual(assembly, modes, displacements, loads)
+        size = np.abs(residual).max(axis=0) / np.maximum(np.abs(loads).max(axis=0), 1e-300)
+        improving = size < 0.5 * accuracy
+        accuracy = np.minimum(size, accuracy)
+        if not np.any(improving & (size > 4 * np.finfo(float).eps)):
+            break
+        correction = np.asarray(factor.solve(residual)).reshape(loads.shape)
+        displacements[:, improving] += correction[:, improving]
+    error = backward_error(K, norm_K, displacements, loads)
+    if np.any(error > BACKWARD_ERROR_LIMIT):
+        worst = int(np.argmax(error))
         raise FEError(
-            f"the solution of case {worst} is not accurate (relative residual {residual.max():.1e}); the model is "
-            "badly conditioned: check for stiffness ratios beyond about 1e12 between walls, members and diaphragm"
+            f"{plan.source}: the solution of case {cases[worst].name} is not accurate: backward error "
+            f"{error[worst]:.1e} after iterative refinement (limit {BACKWARD_ERROR_LIMIT:.0e}); "
+            f"{_stiffness_spread(assembly)}. Check for stiffness values far outside the usual range"
         )
+    imbalance = wall_equilibrium(assembly, displacements, loads)
+    if np.any(imbalance > EQUILIBRIUM_LIMIT):
+        worst = int(np.argmax(imbalance))
+        raise FEError(
+            f"{plan.source}: the wall reactions of case {cases[worst].name} do not balance the applied load "
+            f"(imbalance {imbalance[worst]:.1e} of the load, limit {EQUILIBRIUM_LIMIT:.0e}) although the solve "
+            f"is accurate (backward error {error[worst]:.1e}); {_stiffness_spread(assembly)}"
+        )
+    final = structural_residual(assembly, modes, displacements, loads)
+    residual = np.linalg.norm(final, axis=0) / np.maximum(np.linalg.norm(loads, axis=0), 1e-300)
     wall_forces = {}
     for spring in assembly.springs:
         dofs = element_dofs(spring.edges)
         local = np.einsum("mij,mjc->mic", spring.matrices, displacements[dofs])  # (m, 2k, n_cases)
         along = local.reshape(len(spring.edges), -1, 2, displacements.shape[1])
         wall_forces[spring.wall_id] = np.einsum("mkdc,d->c", along, spring.direction)
-    return Solution(assembly, tuple(cases), loads, displacements, wall_forces, residual, factor.backend)
+    return Solution(assembly, tuple(cases), loads, displacements, wall_forces, residual, factor.backend,
+                    error, imbalance)
+
+
+def _stiffness_spread(assembly: Assembly) -> str:
+    """Words for the spread of stiffness in the model (stiffest / softest part)."""
+    parts = _stiffness_parts(assembly)
+    stiffest = max(parts, key=parts.get)
+    softest = min(parts, key=parts.get)
+    return (f"the stiffest part of the model ({stiffest}) is {parts[stiffest] / parts[softest]:.1e} times "
+            f"the softest ({softest})")
