@@ -21,7 +21,7 @@ from planshear.plan import Material, Plan
 from .elements import (
     area_load,
     bar_stiffness,
-    edge_load,
+    edge_shape,
     line_spring_stiffness,
     membrane_rigidity,
     membrane_stiffness,
@@ -188,14 +188,13 @@ def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:
     dofs = element_dofs(mesh.elements)
     extent = float(np.ptp(mesh.nodes, axis=0).max())
     tol = 1e-7 * extent
-    edge_points = shapely.points(mesh.nodes[mesh.edges])
     loads = np.zeros((n, len(cases)))
     cache: dict[int, np.ndarray] = {}
     area_share = None
     for j, case in enumerate(cases):
         key = id(case.field)
         if key not in cache:
-            cache[key] = _field_vector(case.field, mesh, centroids, dofs, edge_points, tol)
+            cache[key] = _field_vector(case.field, mesh, centroids, dofs, tol)
         f = cache[key]
         if case.torsion != 0.0:
             if area_share is None:
@@ -264,7 +263,39 @@ def torsion_vector(
     return spread[0].ravel(), basis
 
 
-def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.ndarray:
+def _line_load(mesh: Mesh, start: np.ndarray, end: np.ndarray, q: float, direction: np.ndarray,
+               tol: float) -> tuple[np.ndarray, np.ndarray]:
+    """Mesh edges (m, k) under a uniform line load q (N/m) on the segment start → end and
+    their consistent nodal forces (m, 2k), integrating over the covered part of each edge
+    only: a segment may begin or end inside an edge (a wind band's limit is not always a
+    mesh node), and such an edge must carry its share, not all of it or none."""
+    length = float(np.hypot(*(end - start)))
+    tangent = (end - start) / length
+    normal = np.array([-tangent[1], tangent[0]])
+    rel = mesh.nodes[mesh.edges] - start  # (n_edges, k, 2)
+    s = rel @ tangent  # position along the segment, m
+    on_line = (np.abs(rel @ normal) <= tol).all(axis=1)
+    lo = np.maximum(np.minimum(s[:, 0], s[:, 1]), 0.0)
+    hi = np.minimum(np.maximum(s[:, 0], s[:, 1]), length)
+    covered = on_line & (hi - lo > tol)
+    if not np.any(covered) or abs(float(np.sum(hi[covered] - lo[covered])) - length) > 1e3 * tol:
+        raise FEError("a line load does not follow mesh edges (internal meshing error)")
+    edges, s, lo, hi = mesh.edges[covered], s[covered], lo[covered], hi[covered]
+    g, w = _GAUSS3
+    half = (hi - lo) / 2.0
+    sigma = (lo + hi)[:, None] / 2.0 + half[:, None] * g[None, :]  # (m, 3) Gauss points, m
+    xi = -1.0 + 2.0 * (sigma - s[:, :1]) / (s[:, 1:2] - s[:, :1])  # edge coordinate of each point
+    N, _ = edge_shape(edges.shape[1], xi.ravel())
+    N = N.reshape(len(edges), len(g), -1)  # (m, 3, k)
+    scalar = np.einsum("mgk,g,m->mk", N, w, half * q)
+    return edges, (scalar[:, :, None] * direction[None, None, :]).reshape(len(edges), -1)
+
+
+#: Three-point Gauss–Legendre rule on [−1, 1] (exact for the quadratic edge shapes).
+_GAUSS3 = (np.array([-np.sqrt(0.6), 0.0, np.sqrt(0.6)]), np.array([5.0, 8.0, 5.0]) / 9.0)
+
+
+def _field_vector(field_, mesh: Mesh, centroids, dofs, tol) -> np.ndarray:
     n = mesh.n_dofs
     f = np.zeros(n)
     pressure = np.zeros(len(mesh.elements))
@@ -274,13 +305,8 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.n
     if np.any(pressure):
         np.add.at(f, dofs.ravel(), area_load(mesh.element_type, mesh.nodes[mesh.elements], pressure, field_.direction).ravel())
     for start, end, q in field_.lines:
-        segment = shapely.LineString([start, end])
-        on = (shapely.distance(segment, edge_points) <= tol).all(axis=1)
-        if not np.any(on):
-            raise FEError("a line load does not follow mesh edges (internal meshing error)")
-        edges = mesh.edges[on]
-        np.add.at(f, element_dofs(edges).ravel(),
-                  edge_load(mesh.nodes[edges], np.full(len(edges), q), field_.direction).ravel())
+        edges, forces = _line_load(mesh, np.asarray(start, float), np.asarray(end, float), q, field_.direction, tol)
+        np.add.at(f, element_dofs(edges).ravel(), forces.ravel())
     for x, y, p in field_.points:
         node = mesh.point_nodes.get((x, y))
         if node is None:

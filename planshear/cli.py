@@ -1,6 +1,7 @@
 """Command line: ``planshear check | run | demo``.
 
-Exit codes: 0 success, 2 bad input (the plan file), 1 internal error. Only this module
+Exit codes: 0 success, 2 bad input (the plan file), 1 internal error (including a case
+whose wall forces fail the equilibrium check: nothing is written then). Only this module
 prints or exits; the library raises exceptions.
 """
 
@@ -13,7 +14,7 @@ import time
 from importlib import resources
 from pathlib import Path
 
-from .errors import AnalysisError, PlanError
+from .errors import AnalysisError, EquilibriumError, PlanError
 from .plan import load_plan, parse_plan
 from .run import CAUTION, Results, analyze, plan_summary
 
@@ -82,6 +83,9 @@ def main(argv: list[str] | None = None) -> int:
         if len(exc.problems) > 1:
             print(f"{len(exc.problems)} problems found; nothing was analyzed.", file=sys.stderr)
         return EXIT_BAD_INPUT
+    except EquilibriumError as exc:  # results that do not balance are a defect, never output
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_INTERNAL
     except AnalysisError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
