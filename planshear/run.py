@@ -17,7 +17,7 @@ from .errors import AnalysisError, EquilibriumError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
-from .plan import Plan
+from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
 from .postprocess.envelope import Envelope, build_envelope, compare_walls
 from .results import (
@@ -73,7 +73,8 @@ class Results:
             "caution": CAUTION,
             "assumptions": {name: method_to_json(m, units) for name, m in self.methods.items()},
             "unavailable": dict(self.unavailable),
-            "classification": classification_to_json(self.classification, units),
+            "classification": (classification_to_json(self.classification, units) if self.classification
+                               else self._classification_not_calculated()),
             "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
             "envelope": envelope_to_json(self.envelope, units),
             "comparison": comparison_to_json(compare_walls(self.methods), units),
@@ -83,6 +84,27 @@ class Results:
                 "tolerance": EQUILIBRIUM_TOLERANCE,
                 "largest_imbalance": {name: float(f"{value:.3e}") for name, value in self.equilibrium.items()},
             },
+        }
+
+    def _classification_not_calculated(self) -> dict | None:
+        """Without the semi-rigid model MDD cannot be calculated: say so, and keep the
+        engineer's statements (the prescriptive §12.3.1.1 / §12.3.1.2 conditions)."""
+        reason = self.unavailable.get("semirigid")
+        if reason is None:
+            return None
+        flags = self.plan.classification
+        return {
+            "criterion": "ASCE 7-16 §12.3.1.3: may be idealized as flexible when MDD/ADVE > 2",
+            "calculated": False,
+            "reason": "the calculated check needs the semi-rigid model, which was not run"
+                      + (" (not requested)" if reason == "not requested" else " (see 'unavailable')"),
+            "idealized_flexible_stated": flags.idealized_flexible,
+            "idealized_rigid_stated": flags.idealized_rigid,
+            "note": ("the flexible results may be used for design only where the engineer has established that "
+                     "the idealized-flexible conditions of ASCE 7-16 §12.3.1.1 apply"
+                     + (" (stated in the plan: idealized_flexible = true)" if flags.idealized_flexible
+                        else " (not stated in the plan)")),
+            "directions": {},
         }
 
     def write(self, folder: str | Path, report: bool = True) -> Path:
@@ -137,16 +159,21 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     cases = expand_load_cases(plan)
     methods: dict[str, MethodResult] = {}
     unavailable: dict[str, str] = {}
+    # Walls in one direction only (loaded along it): the flexible method alone can run.
+    unavailable.update(assess_stability(plan).unavailable)
     try:
         methods["flexible"] = flexible_analysis(plan, cases)
     except AnalysisError as exc:
         unavailable["flexible"] = str(exc)
-    methods["rigid"] = rigid_analysis(plan, cases)
+    if "rigid" not in unavailable:
+        methods["rigid"] = rigid_analysis(plan, cases)
     run = None
     classification = None
     sensitivity: dict[float, MethodResult] = {}
     solutions = {}
-    if semirigid:
+    if "semirigid" in unavailable:
+        pass
+    elif semirigid:
         run = semirigid_analysis(plan, cases, progress=report)
         methods["semirigid"] = run.result
         report("flexibility classification")
