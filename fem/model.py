@@ -6,6 +6,7 @@ arrays are (n_dofs, n_cases); all SI (N, m).
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -202,6 +203,18 @@ def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:
             f = f + torsion_vector(f, mesh.nodes, case.direction, case.torsion, area_share)[0]
         loads[:, j] = f
     return loads
+
+
+def torsion_bases(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> dict[str, str]:
+    """For each case with accidental torsion, how :func:`torsion_vector` spreads it:
+    "load" (the case's own load) or "area" (the diaphragm area). For the notes."""
+    torsional = [c for c in cases if c.torsion != 0.0]
+    if not torsional:
+        return {}
+    loads = load_vectors(plan, mesh, [dataclasses.replace(c, torsion=0.0) for c in torsional])
+    area_share = nodal_area(mesh)
+    return {c.name: torsion_vector(loads[:, j], mesh.nodes, c.direction, c.torsion, area_share)[1]
+            for j, c in enumerate(torsional)}
 
 
 def nodal_area(mesh: Mesh) -> np.ndarray:

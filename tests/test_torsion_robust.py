@@ -152,3 +152,13 @@ def test_wind_edge_load_with_eccentricity_near_rigid_matches_rigid(plan_from):
         assert basis == "load"
         for wall_id, force in solution.wall_forces.items():
             assert abs(force[j] - rigid.cases[case.name].wall_forces[wall_id]) <= 0.01 * case.force
+
+
+def test_the_notes_say_how_the_torsion_was_spread(mesh_and_plan):
+    """The reviewer is told when the moment went to the diaphragm area instead of the load."""
+    from planshear.semirigid import semirigid_analysis
+
+    plan, mesh = mesh_and_plan
+    result = semirigid_analysis(plan, expand_load_cases(plan), mesh=mesh).result
+    assert set(result.extra["accidental_torsion_spread"].values()) == {"area"}
+    assert any("spread over the diaphragm area" in note for note in result.notes)
