@@ -19,6 +19,7 @@ import numpy as np
 
 __all__ = [
     "shape_functions",
+    "natural_coordinates",
     "quadrature",
     "membrane_rigidity",
     "membrane_stiffness",
@@ -102,6 +103,26 @@ def shape_functions(element_type: str, points: np.ndarray) -> tuple[np.ndarray, 
         )
         return N, np.stack([dxi, deta], axis=-1)
     raise ValueError(f"unknown element type {element_type}")
+
+
+def natural_coordinates(element_type: str, corners: np.ndarray, points: np.ndarray) -> np.ndarray:
+    """Reference coordinates (n, 2) of points (n, 2) in straight-sided elements with corner
+    coordinates ``corners`` (n, 3 or 4, 2): barycentric (ξ, η) for triangles, Newton on the
+    bilinear corner map for quadrilaterals (their mid-side nodes lie at mid-side, so the map
+    of every quadrilateral kind is that bilinear map)."""
+    if element_type.startswith("tri"):
+        a = np.stack([corners[:, 1] - corners[:, 0], corners[:, 2] - corners[:, 0]], axis=-1)  # (n, 2, 2)
+        return np.linalg.solve(a, (points - corners[:, 0])[..., None])[..., 0]
+    ref = np.zeros((len(points), 2))
+    for _ in range(12):
+        N, dN = shape_functions("quad4", ref)  # one row per point: each has its own coordinates
+        mapped = np.einsum("pn,pnd->pd", N, corners)
+        jacobian = np.einsum("pnr,pnd->pdr", dN, corners)
+        step = np.linalg.solve(jacobian, (points - mapped)[..., None])[..., 0]
+        ref += step
+        if np.max(np.abs(step), initial=0.0) < 1e-12:
+            break
+    return ref
 
 
 def _lagrange3(s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -6,6 +6,7 @@ arrays are (n_dofs, n_cases); all SI (N, m).
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -13,7 +14,7 @@ import scipy.sparse as sp
 import shapely
 from scipy.sparse.csgraph import connected_components
 
-from planshear.errors import AnalysisError
+from planshear.errors import AnalysisError, EquilibriumError
 from planshear.loads import LoadCase
 from planshear.mesh import LineMesh, Mesh
 from planshear.plan import Material, Plan
@@ -21,17 +22,17 @@ from planshear.plan import Material, Plan
 from .elements import (
     area_load,
     bar_stiffness,
-    edge_load,
+    edge_shape,
     line_spring_stiffness,
     membrane_rigidity,
     membrane_stiffness,
+    natural_coordinates,
+    shape_functions,
 )
 from .solver import factorize
 
 __all__ = ["Assembly", "Solution", "FEError", "assemble", "load_vectors", "solve"]
 
-#: Largest relative residual ‖K u − f‖ / ‖f‖ accepted after a solve.
-RESIDUAL_LIMIT = 1e-8
 #: Elements processed per chunk when forming element matrices (bounds temporary memory).
 CHUNK = 50_000
 
@@ -84,8 +85,10 @@ class Solution:
     loads: np.ndarray  # (n_dofs, n_cases) N
     displacements: np.ndarray  # (n_dofs, n_cases) m
     wall_forces: dict[str, np.ndarray]  # id → (n_cases,) N along the wall
-    residual: np.ndarray  # (n_cases,) relative
+    residual: np.ndarray  # (n_cases,) ‖f − K u‖₂ / ‖f‖₂ (structural_residual)
     backend: str
+    backward_error: np.ndarray | None = None  # (n_cases,) ‖K u − f‖∞ / (‖K‖∞‖u‖∞ + ‖f‖∞)
+    equilibrium: np.ndarray | None = None  # (n_cases,) wall reactions vs. load, relative (wall_equilibrium)
 
     def node_displacements(self, case_index: int) -> np.ndarray:
         return self.displacements[:, case_index].reshape(-1, 2)
@@ -180,46 +183,153 @@ def _bar_group(name: str, role: str, edges: np.ndarray, EA: float, mesh: Mesh) -
 
 def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:
     """Consistent nodal loads (n_dofs, n_cases) in N: area, line and point parts of each
-    case's force field, plus the accidental torsion of the ±ecc cases distributed in
-    proportion to (nodal load × lever arm from the load's centroid), which adds a pure
-    moment F·e without changing the resultant."""
+    case's force field, plus the accidental torsion of the ±ecc cases as a pure moment
+    F·e about z (no net force; see :func:`torsion_vector` for how it is spread)."""
     n = mesh.n_dofs
     corners = 3 if mesh.element_type.startswith("tri") else 4
     centroids = mesh.nodes[mesh.elements[:, :corners]].mean(axis=1)
     dofs = element_dofs(mesh.elements)
     extent = float(np.ptp(mesh.nodes, axis=0).max())
     tol = 1e-7 * extent
-    edge_points = shapely.points(mesh.nodes[mesh.edges])
     loads = np.zeros((n, len(cases)))
     cache: dict[int, np.ndarray] = {}
+    area_share = None
     for j, case in enumerate(cases):
         key = id(case.field)
         if key not in cache:
-            cache[key] = _field_vector(case.field, mesh, centroids, dofs, edge_points, tol)
+            cache[key] = _field_vector(case.field, mesh, centroids, dofs, tol)
         f = cache[key]
         if case.torsion != 0.0:
-            f = f + _torsion_vector(f, mesh, case.direction, case.torsion)
+            if area_share is None:
+                area_share = nodal_area(mesh)
+            f = f + torsion_vector(f, mesh.nodes, case.direction, case.torsion, area_share)[0]
         loads[:, j] = f
     return loads
 
 
-def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.ndarray:
+def torsion_bases(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> dict[str, str]:
+    """For each case with accidental torsion, how :func:`torsion_vector` spreads it:
+    "load" (the case's own load) or "area" (the diaphragm area). For the notes."""
+    torsional = [c for c in cases if c.torsion != 0.0]
+    if not torsional:
+        return {}
+    loads = load_vectors(plan, mesh, [dataclasses.replace(c, torsion=0.0) for c in torsional])
+    area_share = nodal_area(mesh)
+    return {c.name: torsion_vector(loads[:, j], mesh.nodes, c.direction, c.torsion, area_share)[1]
+            for j, c in enumerate(torsional)}
+
+
+def nodal_area(mesh: Mesh) -> np.ndarray:
+    """Each node's share (n_nodes,) of the diaphragm area in m²: the consistent nodal load
+    of a unit pressure over every element (sums to the meshed area)."""
+    unit = area_load(mesh.element_type, mesh.nodes[mesh.elements], np.ones(len(mesh.elements)), np.array([1.0, 0.0]))
+    share = np.zeros(mesh.n_dofs)
+    np.add.at(share, element_dofs(mesh.elements).ravel(), unit.ravel())
+    return share[0::2]
+
+
+#: The accidental torsion follows the load's own distribution only while, at every loaded
+#: node, the added torsional force stays below the node's direct load (see torsion_vector).
+TORSION_SPREAD_LIMIT = 1.0
+
+
+def _moment_spread(weight: np.ndarray, nodes: np.ndarray, torsion: float) -> tuple[np.ndarray, float] | None:
+    """Nodal forces (n_nodes, 2) that add the moment ``torsion`` (N·m) about z and no net
+    force, in proportion to ``weight`` × lever arm about the weight's own centroid
+    (the inertial forces of a rotation); with the largest ratio of added force to a node's
+    own weight. None when the weight has no centroid or no polar moment."""
+    total = float(weight.sum())
+    if not np.isfinite(total) or total <= 0.0:
+        return None
+    center = (weight[:, None] * nodes).sum(axis=0) / total
+    arm = nodes - center
+    radius2 = arm[:, 0] ** 2 + arm[:, 1] ** 2
+    polar = float(np.sum(weight * radius2))
+    if not np.isfinite(polar) or polar <= 0.0:
+        return None
+    loaded = weight != 0.0
+    ratio = abs(torsion) * float(np.sqrt(radius2[loaded].max())) / polar
+    tangential = np.column_stack([-arm[:, 1], arm[:, 0]])
+    return torsion / polar * weight[:, None] * tangential, ratio
+
+
+def torsion_vector(
+    f: np.ndarray, nodes: np.ndarray, direction: np.ndarray, torsion: float, area_share: np.ndarray
+) -> tuple[np.ndarray, str]:
+    """Nodal forces (n_dofs,) in N that add the accidental torsion ``torsion`` (N·m, about
+    z) to the load ``f`` with no net force, and the basis used ("load" or "area").
+
+    The moment is spread as the inertial forces of a small rotation, force ∝ weight ×
+    lever arm: by the case's own load (weight) about its centroid when that load is spread
+    widely enough that the added force nowhere exceeds the node's direct load
+    (|T|·r_max / J_load ≤ :data:`TORSION_SPREAD_LIMIT`, i.e. e·r_max ≤ r_gyration², which
+    keeps the load's direction everywhere); otherwise (one point weight, a small footprint,
+    a short line: J_load → 0 would blow the forces up) by the diaphragm area about the
+    area's centroid. Either way the forces sum to zero and their moment is exactly T,
+    because the centroid and polar moment are those of the same nodal distribution."""
+    weight = f.reshape(-1, 2) @ direction  # signed nodal share of the load, N
+    spread = _moment_spread(weight, nodes, torsion)
+    basis = "load"
+    if spread is None or spread[1] > TORSION_SPREAD_LIMIT:
+        spread = _moment_spread(area_share, nodes, torsion)
+        basis = "area"
+        if spread is None:
+            raise FEError("the accidental torsion cannot be applied: the mesh has no area (internal meshing error)")
+    return spread[0].ravel(), basis
+
+
+def _line_load(mesh: Mesh, start: np.ndarray, end: np.ndarray, q: float, direction: np.ndarray,
+               tol: float) -> tuple[np.ndarray, np.ndarray]:
+    """Mesh edges (m, k) under a uniform line load q (N/m) on the segment start → end and
+    their consistent nodal forces (m, 2k), integrating over the covered part of each edge
+    only: a segment may begin or end inside an edge (a wind band's limit is not always a
+    mesh node), and such an edge must carry its share, not all of it or none."""
+    length = float(np.hypot(*(end - start)))
+    tangent = (end - start) / length
+    normal = np.array([-tangent[1], tangent[0]])
+    rel = mesh.nodes[mesh.edges] - start  # (n_edges, k, 2)
+    s = rel @ tangent  # position along the segment, m
+    on_line = (np.abs(rel @ normal) <= tol).all(axis=1)
+    lo = np.maximum(np.minimum(s[:, 0], s[:, 1]), 0.0)
+    hi = np.minimum(np.maximum(s[:, 0], s[:, 1]), length)
+    covered = on_line & (hi - lo > tol)
+    if not np.any(covered) or abs(float(np.sum(hi[covered] - lo[covered])) - length) > 1e3 * tol:
+        raise FEError("a line load does not follow mesh edges (internal meshing error)")
+    edges, s, lo, hi = mesh.edges[covered], s[covered], lo[covered], hi[covered]
+    g, w = _GAUSS3
+    half = (hi - lo) / 2.0
+    sigma = (lo + hi)[:, None] / 2.0 + half[:, None] * g[None, :]  # (m, 3) Gauss points, m
+    xi = -1.0 + 2.0 * (sigma - s[:, :1]) / (s[:, 1:2] - s[:, :1])  # edge coordinate of each point
+    N, _ = edge_shape(edges.shape[1], xi.ravel())
+    N = N.reshape(len(edges), len(g), -1)  # (m, 3, k)
+    scalar = np.einsum("mgk,g,m->mk", N, w, half * q)
+    return edges, (scalar[:, :, None] * direction[None, None, :]).reshape(len(edges), -1)
+
+
+#: Three-point Gauss–Legendre rule on [−1, 1] (exact for the quadratic edge shapes).
+_GAUSS3 = (np.array([-np.sqrt(0.6), 0.0, np.sqrt(0.6)]), np.array([5.0, 8.0, 5.0]) / 9.0)
+
+
+def _field_vector(field_, mesh: Mesh, centroids, dofs, tol) -> np.ndarray:
     n = mesh.n_dofs
     f = np.zeros(n)
     pressure = np.zeros(len(mesh.elements))
     cells = element_polygons(mesh) if field_.areas else None
     for geometry, p in field_.areas:
-        pressure += p * area_fractions(cells, geometry, centroids, tol)
+        inside, crossed, area, centroid = area_overlap(cells, geometry, centroids, tol)
+        pressure += p * inside
+        if len(crossed):
+            # The part of a crossed element under the load, as its resultant at its centroid:
+            # exact force and first moment whatever the mesh.
+            corners = mesh.nodes[mesh.elements[crossed, : cells[2]]]
+            N, _ = shape_functions(mesh.element_type, natural_coordinates(mesh.element_type, corners, centroid))
+            nodal = (p * area)[:, None, None] * N[:, :, None] * field_.direction[None, None, :]
+            np.add.at(f, dofs[crossed].ravel(), nodal.reshape(len(crossed), -1).ravel())
     if np.any(pressure):
         np.add.at(f, dofs.ravel(), area_load(mesh.element_type, mesh.nodes[mesh.elements], pressure, field_.direction).ravel())
     for start, end, q in field_.lines:
-        segment = shapely.LineString([start, end])
-        on = (shapely.distance(segment, edge_points) <= tol).all(axis=1)
-        if not np.any(on):
-            raise FEError("a line load does not follow mesh edges (internal meshing error)")
-        edges = mesh.edges[on]
-        np.add.at(f, element_dofs(edges).ravel(),
-                  edge_load(mesh.nodes[edges], np.full(len(edges), q), field_.direction).ravel())
+        edges, forces = _line_load(mesh, np.asarray(start, float), np.asarray(end, float), q, field_.direction, tol)
+        np.add.at(f, element_dofs(edges).ravel(), forces.ravel())
     for x, y, p in field_.points:
         node = mesh.point_nodes.get((x, y))
         if node is None:
@@ -228,37 +338,30 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, edge_points, tol) -> np.n
     return f
 
 
-def element_polygons(mesh: Mesh) -> tuple[np.ndarray, shapely.STRtree]:
-    """Corner polygons of all elements (straight-sided) and an R-tree over them."""
+def element_polygons(mesh: Mesh) -> tuple[np.ndarray, shapely.STRtree, int]:
+    """Corner polygons of all elements (straight-sided), an R-tree over them and the
+    number of corners."""
     corners = 3 if mesh.element_type.startswith("tri") else 4
     polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
-    return polygons, shapely.STRtree(polygons)
+    return polygons, shapely.STRtree(polygons), corners
 
 
-def area_fractions(cells: tuple[np.ndarray, shapely.STRtree], geometry, centroids: np.ndarray, tol: float) -> np.ndarray:
-    """Share (n_e,) of each element's area (``cells`` from :func:`element_polygons`) inside
-    ``geometry``: 1 or 0 by the centroid for
-    elements that the geometry's boundary does not cross (zones and the outline follow
-    element edges), the exact polygon overlap for those it crosses (loads spread across the
-    depth and point-weight footprints need not follow the mesh), so that the total of an
-    area load is exact on any mesh."""
-    polygons, tree = cells
+def area_overlap(cells: tuple, geometry, centroids: np.ndarray, tol: float):
+    """How the elements (``cells`` from :func:`element_polygons`) lie in ``geometry``:
+    ``inside`` (n_e,) 1 for elements inside it and not crossed by its boundary (zones and
+    the outline follow element edges), 0 otherwise; for the elements its boundary crosses
+    (loads spread across the depth and footprints need not follow the mesh), their indices,
+    the area (m²) and the centroid (m) of their part inside."""
+    polygons, tree, _ = cells
     inside = shapely.contains_xy(geometry.buffer(tol), centroids[:, 0], centroids[:, 1]).astype(float)
     crossed = np.unique(tree.query(geometry.boundary, predicate="crosses"))
-    if len(crossed):
-        cells = polygons[crossed]
-        inside[crossed] = shapely.area(shapely.intersection(cells, geometry)) / shapely.area(cells)
-    return inside
-
-
-def _torsion_vector(f: np.ndarray, mesh: Mesh, direction: np.ndarray, torsion: float) -> np.ndarray:
-    weight = f.reshape(-1, 2) @ direction  # signed nodal share of the load
-    total = weight.sum()
-    center = (weight[:, None] * mesh.nodes).sum(axis=0) / total
-    arm = mesh.nodes - center
-    polar = float(np.sum(weight * (arm[:, 0] ** 2 + arm[:, 1] ** 2)))
-    tangential = np.column_stack([-arm[:, 1], arm[:, 0]])
-    return (torsion / polar * weight[:, None] * tangential).ravel()
+    inside[crossed] = 0.0
+    parts = shapely.intersection(polygons[crossed], geometry)
+    area = shapely.area(parts)
+    keep = area > 0
+    crossed, parts, area = crossed[keep], parts[keep], area[keep]
+    centroid = shapely.get_coordinates(shapely.centroid(parts)).reshape(-1, 2)
+    return inside, crossed, area, centroid
 
 
 def check_restraint(assembly: Assembly, plan: Plan) -> None:
@@ -301,8 +404,22 @@ def check_restraint(assembly: Assembly, plan: Plan) -> None:
         )
 
 
-#: Largest accepted ratio between the stiffest and the softest diagonal term of K.
+#: Largest accepted ratio between the stiffest and the softest diagonal term of K (and
+#: between the stiffest and softest part). Beyond it double precision (16 digits) keeps
+#: fewer than about 4 correct digits of the softer part's share of the answer.
 CONDITION_LIMIT = 1e12
+
+
+def _stiffness_parts(assembly: Assembly) -> dict[str, float]:
+    """Stiffness of each part of the model in N/m: walls, bars (EA over the plan size),
+    membrane shear and axial rigidity (largest and smallest over the elements)."""
+    extent = float(np.ptp(assembly.mesh.nodes, axis=0).max())
+    parts = {f'wall "{s.wall_id}"': s.stiffness for s in assembly.springs}
+    parts.update({f"{b.name}": b.EA / extent for b in assembly.bars})
+    parts["diaphragm membrane (shear)"] = float(np.min(assembly.rigidity[:, 2, 2]))
+    parts["diaphragm membrane (axial)"] = float(np.min(assembly.rigidity[:, 0, 0]))
+    parts["diaphragm membrane (stiffest shear)"] = float(np.max(assembly.rigidity[:, 2, 2]))
+    return parts
 
 
 def check_conditioning(assembly: Assembly, plan: Plan) -> None:
@@ -313,12 +430,7 @@ def check_conditioning(assembly: Assembly, plan: Plan) -> None:
     if np.any(~np.isfinite(diagonal)) or np.any(diagonal <= 0):
         raise FEError(f"{plan.source}: the stiffness matrix has a zero or non-finite diagonal term; "
                       "check for zero or infinite stiffness values")
-    extent = float(np.ptp(assembly.mesh.nodes, axis=0).max())
-    # Stiffness of each part of the model in N/m: walls, bars over the plan size, membrane.
-    parts = {f'wall "{s.wall_id}"': s.stiffness for s in assembly.springs}
-    parts.update({f"{b.name}": b.EA / extent for b in assembly.bars})
-    parts["diaphragm membrane (shear)"] = float(np.min(assembly.rigidity[:, 2, 2]))
-    parts["diaphragm membrane (axial)"] = float(np.min(assembly.rigidity[:, 0, 0]))
+    parts = _stiffness_parts(assembly)
     ratio = max(diagonal.max() / diagonal.min(), max(parts.values()) / min(parts.values()))
     if ratio <= CONDITION_LIMIT:
         return
@@ -331,32 +443,142 @@ def check_conditioning(assembly: Assembly, plan: Plan) -> None:
     )
 
 
+def backward_error(stiffness: sp.csr_matrix, norm_K: float, u: np.ndarray, f: np.ndarray) -> np.ndarray:
+    """Normwise backward error per case (n_cases,): ‖f − K u‖∞ / (‖K‖∞ ‖u‖∞ + ‖f‖∞), the
+    smallest relative change of K and f for which u is the exact solution (Rigal and
+    Gaches, 1967; Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed.,
+    Thm. 7.1). Unlike ‖r‖/‖f‖ it does not grow with the stiffness ratio of the model."""
+    residual = f - stiffness @ u
+    scale = norm_K * np.abs(u).max(axis=0) + np.abs(f).max(axis=0)
+    return np.abs(residual).max(axis=0) / np.maximum(scale, 1e-300)
+
+
+def wall_equilibrium(assembly: Assembly, displacements: np.ndarray, loads: np.ndarray) -> np.ndarray:
+    """Imbalance per case (n_cases,) between the wall springs' reactions and the applied
+    nodal loads: force along x and y and moment about z, the largest of |ΔFx|, |ΔFy| and
+    |ΔMz| / plan size, relative to Σ|f| (the membrane and bars carry no net force)."""
+    nodes = assembly.mesh.nodes
+    reactions = (assembly.spring_matrix @ displacements).reshape(-1, 2, displacements.shape[1])
+    applied = loads.reshape(-1, 2, loads.shape[1])
+    size = max(float(np.ptp(nodes, axis=0).max()), 1e-300)
+    center = nodes.mean(axis=0)
+    arm = nodes - center
+
+    def resultant(forces: np.ndarray) -> np.ndarray:  # (3, n_cases): Fx, Fy, Mz / size
+        moment = arm[:, 0:1] * forces[:, 1] - arm[:, 1:2] * forces[:, 0]
+        return np.vstack([forces[:, 0].sum(axis=0), forces[:, 1].sum(axis=0), moment.sum(axis=0) / size])
+
+    scale = np.maximum(np.abs(loads).sum(axis=0), 1e-300)
+    return np.abs(resultant(reactions) - resultant(applied)).max(axis=0) / scale
+
+
+def rigid_body_modes(nodes: np.ndarray) -> np.ndarray:
+    """Orthonormal rigid-body modes (n_dofs, 3) of the plan: the two translations and the
+    small rotation about the nodes' centroid."""
+    arm = nodes - nodes.mean(axis=0)
+    modes = np.zeros((2 * len(nodes), 3))
+    modes[0::2, 0] = 1.0
+    modes[1::2, 1] = 1.0
+    modes[0::2, 2] = -arm[:, 1]
+    modes[1::2, 2] = arm[:, 0]
+    return np.linalg.qr(modes)[0]
+
+
+def structural_residual(assembly: Assembly, modes: np.ndarray, u: np.ndarray, f: np.ndarray) -> np.ndarray:
+    """f − K u (n_dofs, n_cases) computed so that rounding does not grow with the
+    diaphragm-to-wall stiffness ratio: u is split into its rigid-body part u₀ and the rest,
+    and K u₀ is taken as K_walls u₀, because membrane and bars strain nothing under a
+    rigid-body motion (exactly, for isoparametric elements). Computed directly, K u₀ of a
+    near-rigid diaphragm carries rounding of about 1e-16 × (diaphragm stiffness /
+    wall stiffness) of the load, which no refinement could remove."""
+    rigid = modes @ (modes.T @ u)
+    return f - assembly.spring_matrix @ rigid - assembly.stiffness @ (u - rigid)
+
+
+#: Largest normwise backward error accepted after refinement (a backward-stable solve
+#: gives about 1e-16 times a small multiple of the matrix size).
+BACKWARD_ERROR_LIMIT = 1e-10
+#: Largest imbalance of wall reactions against the applied load, relative to the load.
+EQUILIBRIUM_LIMIT = 1e-6
+#: Iterative refinement steps at most (each is one solve with the existing factor).
+REFINEMENT_STEPS = 4
+#: Refinement runs only for cases whose backward error or wall-reaction imbalance exceeds
+#: these (far below the acceptance limits; most models meet them without a second solve).
+REFINE_BACKWARD_ERROR = 1e-13
+REFINE_EQUILIBRIUM = 1e-10
+
+
 def solve(assembly: Assembly, plan: Plan, cases: list[LoadCase], loads: np.ndarray) -> Solution:
-    """Factor once and solve every case; check the residual of each."""
+    """Factor once and solve every case; where the backward error or the wall-reaction
+    imbalance is above :data:`REFINE_BACKWARD_ERROR` / :data:`REFINE_EQUILIBRIUM`, improve
+    the solution by iterative refinement from the same factor (r = f − K u from
+    :func:`structural_residual`, u += K⁻¹ r, while it halves them); accept it
+    only when its backward error is at most :data:`BACKWARD_ERROR_LIMIT` and the wall
+    reactions balance the applied load (force and moment) to :data:`EQUILIBRIUM_LIMIT`."""
     check_conditioning(assembly, plan)
     check_restraint(assembly, plan)
+    K = assembly.stiffness
     try:
-        factor = factorize(assembly.stiffness)
+        factor = factorize(K)
     except (RuntimeError, ValueError, np.linalg.LinAlgError) as exc:
         raise FEError(f"{plan.source}: the stiffness matrix could not be factorized ({exc}); the model is "
                       "singular: some part of the diaphragm can move without resistance") from None
-    displacements = factor.solve(loads)
+    displacements = np.asarray(factor.solve(loads)).reshape(loads.shape)
     if not np.all(np.isfinite(displacements)):
-        raise FEError("the solve produced non-finite displacements; the stiffness matrix is singular or "
-                      "badly conditioned (check for extreme stiffness ratios between walls, members and diaphragm)")
-    residual_vectors = assembly.stiffness @ displacements - loads
-    norms = np.maximum(np.linalg.norm(loads, axis=0), 1e-300)
-    residual = np.linalg.norm(residual_vectors, axis=0) / norms
-    if np.any(residual > RESIDUAL_LIMIT):
-        worst = cases[int(np.argmax(residual))].name
+        raise FEError(f"{plan.source}: the solve produced non-finite displacements; the stiffness matrix is singular "
+                      f"or nearly so ({_stiffness_spread(assembly)})")
+    norm_K = float(abs(K).sum(axis=1).max())
+    modes = rigid_body_modes(assembly.mesh.nodes)
+    error = backward_error(K, norm_K, displacements, loads)
+    imbalance = wall_equilibrium(assembly, displacements, loads)
+    merit = np.maximum(error / REFINE_BACKWARD_ERROR, imbalance / REFINE_EQUILIBRIUM)
+    for _ in range(REFINEMENT_STEPS):
+        if not np.any(merit > 1.0):  # accurate already: no extra solve
+            break
+        residual = structural_residual(assembly, modes, displacements, loads)
+        trial = displacements + np.asarray(factor.solve(residual)).reshape(loads.shape)
+        trial_error = backward_error(K, norm_K, trial, loads)
+        trial_imbalance = wall_equilibrium(assembly, trial, loads)
+        trial_merit = np.maximum(trial_error / REFINE_BACKWARD_ERROR, trial_imbalance / REFINE_EQUILIBRIUM)
+        better = np.isfinite(trial_merit) & (trial_merit < merit)  # keep a step only where it helps
+        halved = better & (trial_merit < 0.5 * merit) & (trial_merit > 1.0)
+        displacements[:, better] = trial[:, better]
+        error = np.where(better, trial_error, error)
+        imbalance = np.where(better, trial_imbalance, imbalance)
+        merit = np.where(better, trial_merit, merit)
+        if not np.any(halved):
+            break
+    if np.any(error > BACKWARD_ERROR_LIMIT):
+        worst = int(np.argmax(error))
         raise FEError(
-            f"the solution of case {worst} is not accurate (relative residual {residual.max():.1e}); the model is "
-            "badly conditioned: check for stiffness ratios beyond about 1e12 between walls, members and diaphragm"
+            f"{plan.source}: the solution of case {cases[worst].name} is not accurate: backward error "
+            f"{error[worst]:.1e} after iterative refinement (limit {BACKWARD_ERROR_LIMIT:.0e}); "
+            f"{_stiffness_spread(assembly)}. Check for stiffness values far outside the usual range"
         )
+    if np.any(imbalance > EQUILIBRIUM_LIMIT):
+        worst = int(np.argmax(imbalance))
+        raise EquilibriumError(
+            f"{plan.source}: the wall reactions of case {cases[worst].name} do not balance the applied load "
+            f"(imbalance {imbalance[worst]:.1e} of the load, limit {EQUILIBRIUM_LIMIT:.0e}) although the solve "
+            f"is accurate (backward error {error[worst]:.1e}); {_stiffness_spread(assembly)}. These results are "
+            "wrong and nothing was written; please report this with the plan file"
+        )
+    residual = structural_residual(assembly, modes, displacements, loads)
+    relative = np.linalg.norm(residual, axis=0) / np.maximum(np.linalg.norm(loads, axis=0), 1e-300)
     wall_forces = {}
     for spring in assembly.springs:
         dofs = element_dofs(spring.edges)
         local = np.einsum("mij,mjc->mic", spring.matrices, displacements[dofs])  # (m, 2k, n_cases)
         along = local.reshape(len(spring.edges), -1, 2, displacements.shape[1])
         wall_forces[spring.wall_id] = np.einsum("mkdc,d->c", along, spring.direction)
-    return Solution(assembly, tuple(cases), loads, displacements, wall_forces, residual, factor.backend)
+    return Solution(assembly, tuple(cases), loads, displacements, wall_forces, relative, factor.backend,
+                    error, imbalance)
+
+
+def _stiffness_spread(assembly: Assembly) -> str:
+    """Words for the spread of stiffness in the model (stiffest / softest part)."""
+    parts = _stiffness_parts(assembly)
+    stiffest = max(parts, key=parts.get)
+    softest = min(parts, key=parts.get)
+    return (f"the stiffest part of the model ({stiffest}) is {parts[stiffest] / parts[softest]:.1e} times "
+            f"the softest ({softest})")

@@ -1,6 +1,7 @@
 """Command line: ``planshear check | run | demo``.
 
-Exit codes: 0 success, 2 bad input (the plan file), 1 internal error. Only this module
+Exit codes: 0 success, 2 bad input (the plan file), 1 internal error (including a case
+whose wall forces fail the equilibrium check: nothing is written then). Only this module
 prints or exits; the library raises exceptions.
 """
 
@@ -13,7 +14,7 @@ import time
 from importlib import resources
 from pathlib import Path
 
-from .errors import AnalysisError, PlanError
+from .errors import AnalysisError, EquilibriumError, PlanError
 from .plan import load_plan, parse_plan
 from .run import CAUTION, Results, analyze, plan_summary
 
@@ -52,12 +53,16 @@ def main(argv: list[str] | None = None) -> int:
         if args.command == "check":
             plan = load_plan(args.plan)
             from .loads import expand_load_cases
+            from .plan import assess_stability
 
             summary = plan_summary(plan, expand_load_cases(plan))
+            not_run = assess_stability(plan).unavailable
             if args.format == "json":
-                print(json.dumps(summary, indent=1, ensure_ascii=False))
+                print(json.dumps(summary | {"unavailable": not_run}, indent=1, ensure_ascii=False))
             else:
                 _print_check(summary)
+                for assumption, reason in not_run.items():
+                    print(f"  {assumption}: cannot be run — {reason}")
             return EXIT_OK
         if args.command == "demo":
             text = resources.files("planshear").joinpath("data/demo.toml").read_text(encoding="utf-8")
@@ -82,6 +87,9 @@ def main(argv: list[str] | None = None) -> int:
         if len(exc.problems) > 1:
             print(f"{len(exc.problems)} problems found; nothing was analyzed.", file=sys.stderr)
         return EXIT_BAD_INPUT
+    except EquilibriumError as exc:  # results that do not balance are a defect, never output
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_INTERNAL
     except AnalysisError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
@@ -140,9 +148,14 @@ def _print_results(results: Results, out: Path) -> None:
     units = doc["units"]
     force = units["force"]
     print(f"plan: {doc['plan']['name']}")
+    for assumption, reason in doc["unavailable"].items():
+        print(f"\n{assumption}: not run — {reason}")
     classification = doc.get("classification")
     if classification:
         print("\nflexibility (" + classification["criterion"] + ")")
+        if classification.get("calculated") is False:
+            print(f"  cannot be calculated: {classification['reason']}")
+            print(f"  {classification['note']}")
         for axis, check in classification["directions"].items():
             print(f"  load along {axis}: {check['verdict']}")
             governing = [s for s in check["spans"] if f"{s['span']} ({s['case']})" == check["governing_span"]]
@@ -174,8 +187,6 @@ def _print_results(results: Results, out: Path) -> None:
         design = slots.get("design")
         if design:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
-    for assumption, reason in doc["unavailable"].items():
-        print(f"\n{assumption}: not run — {reason}")
     print(f"\nresults written to {out}/")
     print(CAUTION)
 

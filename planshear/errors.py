@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__all__ = ["PlanError", "UnstablePlanError", "AnalysisError"]
+__all__ = ["PlanError", "UnstablePlanError", "AnalysisError", "EquilibriumError"]
 
 
 class PlanError(Exception):
@@ -21,3 +21,8 @@ class UnstablePlanError(PlanError):
 class AnalysisError(Exception):
     """An analysis could not be carried out for a reason that is not a plan error
     (for example a method that does not apply to this plan)."""
+
+
+class EquilibriumError(AnalysisError):
+    """A case's wall forces do not balance its load (force along x and y, moment about z):
+    the results are wrong and must not be used. The CLI exits with status 1."""

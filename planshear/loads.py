@@ -176,10 +176,36 @@ def spread_across_depth(plan: Plan, start: np.ndarray, end: np.ndarray, force: f
             continue
         here = segment.intersection(band)
         touching = [g for g in parts if g.distance(here) <= 1e-7 * size] or [min(parts, key=lambda g: g.distance(here))]
-        share = force * (b - a) / (s1 - s0)
-        area = sum(g.area for g in touching)
-        pieces += [(g, share / area) for g in touching]
+        pieces += _uniform_per_station(touching, force * (b - a) / (s1 - s0), a, b, s_index, lo, hi)
     return tuple(pieces)
+
+
+def _uniform_per_station(parts: list[Polygon], force: float, a: float, b: float, s_index: int,
+                         lo: float, hi: float) -> list[tuple]:
+    """(geometry, pressure) pieces that put ``force`` (N) on ``parts`` (the diaphragm
+    between stations a and b) with its resultant at the band's middle (a + b)/2, as a load
+    uniform per unit of s has. One pressure is exact where the section length is constant;
+    where it varies (a sloped edge) the band is split in two halves whose pressures are
+    chosen to give both the total and the first moment exactly."""
+    merged = shapely.union_all(parts)
+    middle = 0.5 * (a + b)
+    quarter, three_quarters = (sum(_cut_length(g, a + f * (b - a), s_index) for g in parts) for f in (0.25, 0.75))
+    if abs(quarter - three_quarters) <= 1e-9 * max(quarter, three_quarters):
+        return [(merged, force / merged.area)]
+    halves = []
+    for c0, c1 in ((a, middle), (middle, b)):
+        box = shapely.box(c0, lo, c1, hi) if s_index == 0 else shapely.box(lo, c0, hi, c1)
+        halves.append(merged.intersection(box))
+    centres = [h.centroid.coords[0][s_index] for h in halves]
+    first = force * (centres[1] - middle) / (centres[1] - centres[0])
+    return [(halves[0], first / halves[0].area), (halves[1], (force - first) / halves[1].area)]
+
+
+def _cut_length(geometry, s: float, s_index: int) -> float:
+    bounds = geometry.bounds
+    t0, t1 = bounds[1 - s_index] - 1.0, bounds[3 - s_index] + 1.0
+    ends = [(s, t0), (s, t1)] if s_index == 0 else [(t0, s), (t1, s)]
+    return geometry.intersection(LineString(ends)).length
 
 
 def _spread_lines(plan: Plan, lines, axis: str):

@@ -356,6 +356,7 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
             f"displacements {doc['units']['displacement']}",
             "",
             *[f"Load along {axis}: {check['verdict']}" for axis, check in classification["directions"].items()],
+            *_not_run_lines(doc),
             "",
             *_wrap(CAUTION, 110),
         ]
@@ -381,6 +382,18 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
     return written
 
 
+def _not_run_lines(doc: dict) -> list[str]:
+    """Plain lines on the assumptions that were not run and the flexibility check that
+    could not be calculated (empty when everything ran)."""
+    lines = []
+    for assumption, reason in doc.get("unavailable", {}).items():
+        lines += _wrap(f"Not run: {assumption}: {reason}", 110)
+    classification = doc.get("classification") or {}
+    if classification.get("calculated") is False:
+        lines += _wrap(f"Flexibility check not calculated: {classification['reason']}. {classification['note']}", 110)
+    return lines
+
+
 def _wrap(text: str, width: int) -> list[str]:
     import textwrap
 
@@ -403,6 +416,10 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
     classification = doc.get("classification") or {"directions": {}}
     verdicts = "".join(f"<li>load along {_esc(a)}: <b>{_esc(c['verdict'])}</b> (governing span {_esc(c['governing_span'])})</li>"
                        for a, c in classification["directions"].items())
+    if classification.get("calculated") is False:
+        verdicts += (f"<li><b>not calculated</b>: {_esc(classification['reason'])}. "
+                     f"{_esc(classification['note'])}</li>")
+    not_run = "".join(f"<li><b>{_esc(a)}</b>: {_esc(r)}</li>" for a, r in doc.get("unavailable", {}).items())
     if "overall" in classification:
         overall = classification["overall"]
         verdicts += f"<li>overall: <b>{_esc(overall['verdict'])}</b>; governing: {_esc(overall['governing'])}</li>"
@@ -417,6 +434,7 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
         section("Project and plan", f"<p>Plan file <code>{_esc(plan['file'])}</code>; diaphragm area "
                 f"{_num(plan[area_key])} {_esc(area_key[5:])}; material: {_esc(plan['material'])}. "
                 f"Load cases: {_esc(', '.join(plan['cases']))}. planshear {__version__}.</p>"),
+        section("Assumptions not run", f"<ul>{not_run}</ul>") if not_run else "",
         section("Plan drawing", figs(figures["plan"])),
         section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
         section("Loads and load cases", tab("loads") + tab("cases")),

@@ -10,12 +10,14 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+import numpy as np
+
 from .caution import CAUTION
-from .errors import AnalysisError
+from .errors import AnalysisError, EquilibriumError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
-from .plan import Plan
+from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
 from .postprocess.envelope import Envelope, build_envelope, compare_walls
 from .results import (
@@ -28,7 +30,12 @@ from .results import (
 from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
 
-__all__ = ["Results", "analyze", "plan_summary", "CAUTION"]
+__all__ = ["Results", "analyze", "plan_summary", "check_equilibrium", "CAUTION"]
+
+#: Largest imbalance accepted between a case's wall forces and its load: force relative to
+#: the case force, moment relative to the case force × the plan size. Every method is exact
+#: statics or an accurate solve (about 1e-12 or better); a larger imbalance is a defect.
+EQUILIBRIUM_TOLERANCE = 1e-6
 
 
 
@@ -45,6 +52,7 @@ class Results:
     classification: Classification | None = None
     sensitivity: dict[float, MethodResult] = field(default_factory=dict)
     envelope: Envelope | None = None
+    equilibrium: dict[str, float] = field(default_factory=dict)  # assumption → largest imbalance
 
     @property
     def units(self) -> OutputUnits:
@@ -65,10 +73,38 @@ class Results:
             "caution": CAUTION,
             "assumptions": {name: method_to_json(m, units) for name, m in self.methods.items()},
             "unavailable": dict(self.unavailable),
-            "classification": classification_to_json(self.classification, units),
+            "classification": (classification_to_json(self.classification, units) if self.classification
+                               else self._classification_not_calculated()),
             "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
             "envelope": envelope_to_json(self.envelope, units),
             "comparison": comparison_to_json(compare_walls(self.methods), units),
+            "equilibrium": {
+                "check": "every case: wall forces against the load's force along x and y and moment about z "
+                         "(with the accidental torsion for rigid and semi-rigid); relative to F and F × plan size",
+                "tolerance": EQUILIBRIUM_TOLERANCE,
+                "largest_imbalance": {name: float(f"{value:.3e}") for name, value in self.equilibrium.items()},
+            },
+        }
+
+    def _classification_not_calculated(self) -> dict | None:
+        """Without the semi-rigid model MDD cannot be calculated: say so, and keep the
+        engineer's statements (the prescriptive §12.3.1.1 / §12.3.1.2 conditions)."""
+        reason = self.unavailable.get("semirigid")
+        if reason is None:
+            return None
+        flags = self.plan.classification
+        return {
+            "criterion": "ASCE 7-16 §12.3.1.3: may be idealized as flexible when MDD/ADVE > 2",
+            "calculated": False,
+            "reason": "the calculated check needs the semi-rigid model, which was not run"
+                      + (" (not requested)" if reason == "not requested" else " (see 'unavailable')"),
+            "idealized_flexible_stated": flags.idealized_flexible,
+            "idealized_rigid_stated": flags.idealized_rigid,
+            "note": ("the flexible results may be used for design only where the engineer has established that "
+                     "the idealized-flexible conditions of ASCE 7-16 §12.3.1.1 apply"
+                     + (" (stated in the plan: idealized_flexible = true)" if flags.idealized_flexible
+                        else " (not stated in the plan)")),
+            "directions": {},
         }
 
     def write(self, folder: str | Path, report: bool = True) -> Path:
@@ -123,29 +159,123 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     cases = expand_load_cases(plan)
     methods: dict[str, MethodResult] = {}
     unavailable: dict[str, str] = {}
+    # Walls in one direction only (loaded along it): the flexible method alone can run.
+    unavailable.update(assess_stability(plan).unavailable)
     try:
         methods["flexible"] = flexible_analysis(plan, cases)
     except AnalysisError as exc:
         unavailable["flexible"] = str(exc)
-    methods["rigid"] = rigid_analysis(plan, cases)
+    if "rigid" not in unavailable:
+        methods["rigid"] = rigid_analysis(plan, cases)
     run = None
     classification = None
     sensitivity: dict[float, MethodResult] = {}
-    if semirigid:
+    solutions = {}
+    if "semirigid" in unavailable:
+        pass
+    elif semirigid:
         run = semirigid_analysis(plan, cases, progress=report)
         methods["semirigid"] = run.result
         report("flexibility classification")
         classification = classify(plan, run.solution)
         for factor in plan.classification.sensitivity:
             report(f"sensitivity: diaphragm stiffness × {factor:g}")
-            sensitivity[factor] = semirigid_analysis(plan, cases, mesh=run.mesh, stiffness_factor=factor).result
+            scaled = semirigid_analysis(plan, cases, mesh=run.mesh, stiffness_factor=factor)
+            sensitivity[factor] = scaled.result
+            solutions[factor] = scaled.solution
     else:
         unavailable["semirigid"] = "not requested"
+    # After every method ran, so that a model the solver refuses is reported as such first.
+    equilibrium = {name: check_equilibrium(plan, cases, m, name, run.solution if name == "semirigid" else None)
+                   for name, m in methods.items()}
+    for factor, method in sensitivity.items():
+        equilibrium[f"semirigid@{factor:g}"] = check_equilibrium(
+            plan, cases, method, f"semirigid (diaphragm stiffness × {factor:g})", solutions[factor])
     enveloped = dict(methods)
     for factor, method in sensitivity.items():
         enveloped[f"semirigid@{factor:g}"] = method
     envelope = build_envelope(enveloped, cases, classification)
-    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope)
+    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium)
+
+
+def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:
+    """Fx, Fy (N) and Mz about ``reference`` (N·m) of the wall forces. A wall force acts
+    along the wall's line, so its moment is the same from any point of that line."""
+    vectors = np.array([forces[w.id] * w.direction for w in plan.walls])
+    arms = np.array([w.midpoint for w in plan.walls]) - reference
+    moment = float(np.sum(arms[:, 0] * vectors[:, 1] - arms[:, 1] * vectors[:, 0]))
+    return np.array([*vectors.sum(axis=0), moment])
+
+
+def _case_resultant(case: LoadCase, reference: np.ndarray, torsion: bool) -> np.ndarray:
+    """Fx, Fy (N) and Mz (N·m) of a case's load: the force at its centroid, plus the
+    accidental torsion where the assumption applies it."""
+    force = case.force * case.direction
+    arm = case.center - reference
+    moment = float(arm[0] * force[1] - arm[1] * force[0]) + (case.torsion if torsion else 0.0)
+    return np.array([*force, moment])
+
+
+def _vector_resultant(nodes: np.ndarray, f: np.ndarray, reference: np.ndarray) -> np.ndarray:
+    """Fx, Fy (N) and Mz (N·m) of nodal loads f (n_dofs,)."""
+    forces = f.reshape(-1, 2)
+    arms = nodes - reference
+    return np.array([*forces.sum(axis=0), float(np.sum(arms[:, 0] * forces[:, 1] - arms[:, 1] * forces[:, 0]))])
+
+
+def check_equilibrium(plan: Plan, cases: list[LoadCase] | tuple[LoadCase, ...], method: MethodResult,
+                      label: str, solution=None) -> float:
+    """Check every case of one assumption for equilibrium before anything is written: the
+    wall forces' resultant (force along x and y, moment about z) against the case's load
+    (its resultant at the centroid plus, for rigid and semi-rigid, the accidental torsion).
+    For the semi-rigid model (``solution`` given) the load side is the model's nodal load
+    vector, and that vector is checked against the case as well. Returns the largest
+    imbalance (relative: force / F, moment / (F × plan size)); raises
+    :class:`EquilibriumError` naming the assumption, case and imbalance beyond
+    :data:`EQUILIBRIUM_TOLERANCE`."""
+    reference = np.asarray(plan.region.centroid.coords[0])
+    size = float(np.ptp(plan.outline, axis=0).max())
+    by_name = {c.name: c for c in cases}
+    column = {c.name: j for j, c in enumerate(solution.cases)} if solution is not None else {}
+    worst = 0.0
+    for name, result in method.cases.items():
+        case = by_name[name]
+        scale = np.array([case.force, case.force, case.force * size])
+        intended = _case_resultant(case, reference, torsion=method.assumption != "flexible")
+        walls = _wall_resultant(plan, result.wall_forces, reference)
+        checks = [("the wall forces", walls, "the load", intended)]
+        if solution is not None:
+            applied = _vector_resultant(solution.assembly.mesh.nodes, solution.loads[:, column[name]], reference)
+            checks = [("the wall forces", walls, "the model's nodal loads", applied),
+                      ("the model's nodal loads", applied, "the case's load", intended)]
+        for what, got, against, expected in checks:
+            imbalance = float(np.max(np.abs(got - expected) / scale))
+            worst = max(worst, imbalance)
+            if not np.isfinite(imbalance) or imbalance > EQUILIBRIUM_TOLERANCE:
+                raise EquilibriumError(_imbalance_message(plan, label, name, what, got, against, expected, imbalance))
+    return worst
+
+
+def _imbalance_message(plan: Plan, label: str, case: str, what: str, got: np.ndarray, against: str,
+                       expected: np.ndarray, imbalance: float) -> str:
+    units = OutputUnits.for_plan(plan.length_unit)
+
+    def words(v: np.ndarray) -> str:
+        return (f"Fx = {units.force_out(v[0]):.6g} {units.force}, Fy = {units.force_out(v[1]):.6g} {units.force}, "
+                f"Mz = {units.length_out(units.force_out(v[2])):.6g} {units.force}·{units.length}")
+
+    return (f"{plan.source}: equilibrium check failed for the {label} assumption, case {case}: {what} give "
+            f"{words(got)} about the diaphragm's centroid, {against} {words(expected)} (imbalance {imbalance:.1e} "
+            f"of the load, limit {EQUILIBRIUM_TOLERANCE:.0e}). These results are wrong and nothing was written; "
+            + _likely_cause(plan))
+
+
+def _likely_cause(plan: Plan) -> str:
+    k = np.array([w.k for w in plan.walls])
+    if k.max() > 1e8 * k.min():
+        return (f"the wall stiffnesses span a factor of {k.max() / k.min():.1e}, beyond what double precision "
+                "resolves: use realistic values (a 'rigid' wall 1e3–1e4 times stiffer than the others is enough)")
+    return "please report this with the plan file"
 
 
 def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> dict:

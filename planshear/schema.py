@@ -265,23 +265,54 @@ def _has(node: object, key: object) -> bool:
     return False
 
 
+def _misplaced_key(key: str, path: list, file_label: str) -> str:
+    """Message for a top-level key found inside another table. In TOML every key after a
+    [table] header belongs to that table, so a `wall = [...]` written below [mesh] (or a
+    [[mesh.wall]] header) ends up as mesh.wall."""
+    spec = PLAN_SCHEMA["properties"][key]
+    fix = (f"write it as [[{key}]] entries, each starting with a [[{key}]] line" if spec.get("type") == "array"
+           else f"write it as its own [{key}] section")
+    table = ".".join(str(p) for p in path if isinstance(p, str))
+    if isinstance(path[-1], int):
+        owner = f"[[{table}]] entry #{path[-1] + 1}"
+        because = f"it comes after that entry's [[{table}]] header"
+    else:
+        owner = f"the [{table}] table"
+        because = f"it comes after the [{table}] header (a [[{table}.{key}]] header puts it there too)"
+    return (f'{file_label}: key "{key}" belongs to {owner} because {because}; it is needed at the top level: '
+            f"move it above the first table header or {fix}")
+
+
 def schema_problems(document: dict, file_label: str) -> list[str]:
     """Return one message per structural problem of the parsed TOML ``document``."""
     validator = jsonschema.Draft202012Validator(PLAN_SCHEMA)
     problems: list[str] = []
-    for error in sorted(validator.iter_errors(document), key=lambda e: list(map(str, e.absolute_path))):
+    errors = sorted(validator.iter_errors(document), key=lambda e: list(map(str, e.absolute_path)))
+    # Top-level keys that turned up inside another table (reported once, where they are).
+    misplaced = {
+        key
+        for error in errors
+        if error.validator == "additionalProperties" and isinstance(error.instance, dict) and error.absolute_path
+        for key in error.instance
+        if key in PLAN_SCHEMA["properties"] and key not in error.schema.get("properties", {})
+    }
+    for error in errors:
         where = _item_label(document, list(error.absolute_path))
         if error.validator == "additionalProperties" and isinstance(error.instance, dict):
             allowed = sorted(error.schema.get("properties", {}))
             extra = [k for k in error.instance if k not in allowed]
             for key in extra:
+                if key in misplaced and error.absolute_path:
+                    problems.append(_misplaced_key(key, list(error.absolute_path), file_label))
+                    continue
                 close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
                 hint = f'did you mean "{close[0]}"?' if close else f"allowed keys: {', '.join(allowed)}"
                 problems.append(f'{file_label}: {where}: unknown key "{key}" ({hint})')
         elif error.validator == "required":
             missing = [k for k in error.validator_value if k not in error.instance]
             for key in missing:
-                problems.append(f'{file_label}: {where}: required key "{key}" is missing; add it')
+                if key not in misplaced or error.absolute_path:
+                    problems.append(f'{file_label}: {where}: required key "{key}" is missing; add it')
         elif error.validator == "type":
             expected = error.validator_value
             expected = [expected] if isinstance(expected, str) else expected

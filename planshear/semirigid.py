@@ -12,6 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .fem import Solution, assemble, load_vectors, solve
+from .fem.model import torsion_bases
 from .loads import LoadCase
 from .mesh import Mesh, build_mesh
 from .plan import Plan
@@ -80,6 +81,13 @@ def semirigid_analysis(
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "
         f"freedom, factorized once ({solution.backend}) for {len(selected)} cases",
     ]
+    bases = torsion_bases(plan, mesh, selected)
+    spread = sorted({c.load for c in selected if bases.get(c.name) == "area"})
+    if spread:
+        notes.append(
+            f"accidental torsion of load {', '.join(spread)} is spread over the diaphragm area: its weight is too "
+            "concentrated to carry the moment F·e by itself (the moment added is F·e either way)"
+        )
     bare = sorted({name for lines, *_ in per_case for name, line in lines.items()
                    if line.has_member is False and any(w.line == name for w in plan.walls)})
     if bare:
@@ -90,7 +98,7 @@ def semirigid_analysis(
         )
     extra = {"mesh": {"elements": int(len(mesh.elements)), "element_type": mesh.element_type,
                       "nodes": int(mesh.n_nodes), "dofs": int(mesh.n_dofs), "solver": solution.backend},
-             "lines_without_member": bare}
+             "lines_without_member": bare, "accidental_torsion_spread": bases}
     if stiffness_factor != 1.0:
         extra["stiffness_factor"] = stiffness_factor
     return SemirigidRun(MethodResult("semirigid", results, tuple(notes), extra), mesh, solution, membrane)

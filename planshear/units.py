@@ -7,12 +7,15 @@ Output units are chosen per plan (kip/ft/in for foot plans, kN/m/mm for metre
 plans) by :class:`OutputUnits`.
 
 Quantity strings are parsed by pint; this module only adds the trade's
-abbreviations that pint lacks (psf, plf, klf, ksf, pcf).
+abbreviations that pint lacks (psf, plf, klf, ksf, pcf) and reads a lone "k" as kip
+("40 k", "14 k/in"; pint alone would take it for Boltzmann's constant). "kips" is
+pint's own plural of kip. "K" stays kelvin and is refused with a hint.
 """
 
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 
 import pint
@@ -33,6 +36,10 @@ UNITS.define("ksf = kip / foot ** 2")
 UNITS.define("plf = pound_force / foot")
 UNITS.define("klf = kip / foot")
 UNITS.define("pcf = pound_force / foot ** 3")
+
+#: A lone "k" (not part of a longer name such as kN or klf): the trade's abbreviation of
+#: kip. Unambiguous here: no plan quantity involves Boltzmann's constant.
+_LONE_K = re.compile(r"(?<![A-Za-z_])k(?![A-Za-z_0-9])")
 
 #: Largest magnitude accepted for any quantity in SI units (beyond it a value is a typo or
 #: would overflow later; a "rigid" wall of 1e6 kip/in is about 1.8e11 N/m).
@@ -86,7 +93,7 @@ def parse_quantity(value: object, dimension: Dimension, length_unit: str) -> flo
         )
     text = value.strip()
     try:
-        quantity = UNITS.Quantity(text)
+        quantity = UNITS.Quantity(_LONE_K.sub("kip", text))
     except (pint.UndefinedUnitError, pint.errors.DefinitionSyntaxError) as exc:
         raise QuantityError(
             f'unknown unit in "{text}" ({exc}); use a unit such as "{unit_hint}"'
@@ -98,9 +105,11 @@ def parse_quantity(value: object, dimension: Dimension, length_unit: str) -> flo
             f'"{text}" has no unit; write it as "{text} {unit_hint}"'
         )
     if not quantity.check(dimension.pint_dimensionality):
+        kelvin = "[temperature]" in quantity.dimensionality
         raise QuantityError(
-            f'"{text}" is not a {dimension.name} (its unit is {quantity.units:~}); '
-            f'use a unit such as "{unit_hint}"'
+            f'"{text}" is not a {dimension.name} (its unit is {quantity.units:~}'
+            + ('; "K" is kelvin, write "kip" or "k" for kips' if kelvin else "")
+            + f'); use a unit such as "{unit_hint}"'
         )
     magnitude = float(quantity.to_base_units().magnitude)
     if not math.isfinite(magnitude):

@@ -16,7 +16,7 @@ from __future__ import annotations
 import numpy as np
 import shapely
 
-from planshear.fem.elements import shape_functions
+from planshear.fem.elements import natural_coordinates, shape_functions
 from planshear.mesh import Mesh
 
 __all__ = ["interpolate", "section_average", "SAMPLES_PER_SECTION"]
@@ -44,27 +44,6 @@ def _locate(mesh: Mesh, points: np.ndarray) -> np.ndarray:
     return found
 
 
-def _natural(mesh: Mesh, elements: np.ndarray, points: np.ndarray) -> np.ndarray:
-    """Reference coordinates (n, 2) of points inside straight-sided elements: barycentric
-    for triangles, Newton on the bilinear corner map for quadrilaterals (their mid-side
-    nodes lie at mid-side, so the map of every quadrilateral kind is that bilinear map)."""
-    xy = mesh.nodes[mesh.elements[elements, : _corners(mesh)]]
-    if mesh.element_type.startswith("tri"):
-        a = np.stack([xy[:, 1] - xy[:, 0], xy[:, 2] - xy[:, 0]], axis=-1)  # (n, 2, 2)
-        return np.linalg.solve(a, (points - xy[:, 0])[..., None])[..., 0]
-    ref = np.zeros((len(points), 2))
-    for _ in range(12):
-        N, dN = shape_functions("quad4", ref)
-        # Each point has its own reference coordinates: take the matching row.
-        mapped = np.einsum("pn,pnd->pd", N, xy)
-        jac = np.einsum("pnr,pnd->pdr", dN, xy)
-        step = np.linalg.solve(jac, (points - mapped)[..., None])[..., 0]
-        ref += step
-        if np.max(np.abs(step)) < 1e-12:
-            break
-    return ref
-
-
 def interpolate(mesh: Mesh, field: np.ndarray, points: np.ndarray) -> np.ndarray:
     """Nodal ``field`` (n_nodes, ...) evaluated at ``points`` (n, 2) with the elements'
     shape functions: array (n, ...). Points outside the mesh give NaN."""
@@ -75,7 +54,8 @@ def interpolate(mesh: Mesh, field: np.ndarray, points: np.ndarray) -> np.ndarray
     result = np.full((len(points),) + field.shape[1:], np.nan)
     if not np.any(inside):
         return result
-    ref = _natural(mesh, element[inside], points[inside])
+    corners = mesh.nodes[mesh.elements[element[inside], : _corners(mesh)]]
+    ref = natural_coordinates(mesh.element_type, corners, points[inside])
     N, _ = shape_functions(mesh.element_type, ref)  # (n_in, n_nodes_e)
     values = field[mesh.elements[element[inside]]]  # (n_in, n_nodes_e, ...)
     result[inside] = np.einsum("pn,pn...->p...", N, values)

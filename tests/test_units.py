@@ -64,3 +64,36 @@ def test_output_units_round_trip():
     assert units.stiffness_out(1.751268e5) == pytest.approx(1.0, rel=1e-6)  # 1 kip/in (SP 811 B.9 via lbf/in)
     si = OutputUnits.for_plan("m")
     assert si.force_out(1000.0) == 1.0 and si.displacement_out(0.001) == pytest.approx(1.0)
+
+
+@pytest.mark.parametrize(
+    ("text", "dimension", "kips"),
+    [
+        ("40 k", FORCE, 40.0),
+        ("40 kips", FORCE, 40.0),
+        ("40k", FORCE, 40.0),
+        ("14 k/in", STIFFNESS, 14.0),
+        ("14 kips/in", STIFFNESS, 14.0),
+        ("0.3 k/ft", LINE_LOAD, 0.3),
+        ("1e8 k", FORCE, 1e8),
+    ],
+)
+def test_k_and_kips_are_kip(text, dimension, kips):
+    """A lone "k" and "kips" are the trade's abbreviations of kip (common practice); 1 kip =
+    4.448222 E+03 N (SP 811 B.9). pint alone read "k" as Boltzmann's constant."""
+    per = {FORCE: 4.448222e3, STIFFNESS: 4.448222e3 / 0.0254, LINE_LOAD: 4.448222e3 / 0.3048}[dimension]
+    assert parse_quantity(text, dimension, "ft") == pytest.approx(kips * per, rel=1e-6)
+
+
+@pytest.mark.parametrize(
+    ("text", "dimension", "message"),
+    [
+        ("40 K", FORCE, '"K" is kelvin'),  # kelvin, not kips: ambiguous, refused with a hint
+        ("14 K/in", STIFFNESS, '"K" is kelvin'),
+        ("40 kft", FORCE, "is not a force"),  # kilofoot to pint; not a force
+        ("40 kN", STIFFNESS, "is not a stiffness"),  # the prefix k is untouched
+    ],
+)
+def test_ambiguous_k_spellings_are_refused(text, dimension, message):
+    with pytest.raises(QuantityError, match=message):
+        parse_quantity(text, dimension, "ft")
