@@ -163,12 +163,15 @@ def _print_results(results: Results, out: Path) -> None:
         design = envelope.get("walls", {}).get(wall, {}).get("design")
         tail = f"{design['value']:11.2f}  {design['assumption']} {design['case']}" if design else ""
         print("  " + wall.ljust(8) + "".join(cells) + tail)
-    print(f"\ncollector peaks ({force}): design envelope and with overstrength Ω0 (seismic cases)")
+    print(f"\ncollector peaks ({force}): design envelope and with overstrength Ω0 (seismic cases); "
+          "[collector in the semi-rigid model: declared member, outline chord, implied, none]")
     for name, slots in envelope.get("collectors", {}).items():
         design, omega = slots.get("design"), slots.get("with_overstrength")
         if design:
+            basis = slots.get("collector_in_model")
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
-                  f"×Ω0: {omega['value']:.2f}" + ("   (!) no collector member in the model" if "caution" in slots else ""))
+                  f"×Ω0: {omega['value']:.2f}" + (f"   [{basis}]" if basis else "")
+                  + ("   (!) no collector bar in the model" if "caution" in slots else ""))
     print(f"\nchord peaks ({force}, tension +)")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")

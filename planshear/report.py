@@ -155,10 +155,11 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     headers += [f"design ({f})", "governs"]
     tables["walls"] = (headers, rows)
     tables["collectors"] = (
-        ["line", f"design peak ({f})", "governs", f"with Ω0 ({f})", f"largest of all assumptions ({f})", "caution"],
+        ["line", f"design peak ({f})", "governs", f"with Ω0 ({f})", f"largest of all assumptions ({f})",
+         "collector in the semi-rigid model", "caution"],
         [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["with_overstrength"] and s["with_overstrength"]["value"], s["information"] and s["information"]["value"],
-          "no collector member in the model" if "caution" in s else ""]
+          s.get("collector_in_model", ""), "no collector bar in the model" if "caution" in s else ""]
          for n, s in envelope["collectors"].items()],
     )
     tables["chords"] = (

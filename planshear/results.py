@@ -35,6 +35,9 @@ class LineResult:
     residual: float  # N
     side_shear: np.ndarray | None = None  # (k, 3): t, delivered per length from left, from right
     has_member: bool | None = None  # semi-rigid only: whether a bar (collector/chord) lies on the line
+    # Semi-rigid only, lines with walls: the collector of each run of the line's wall pieces,
+    # (kind "declared" | "chord" | "implied" | "none", t_from m, t_to m, EA N).
+    collector_segments: tuple[tuple[str, float, float, float], ...] = ()
 
     @property
     def peak(self) -> float:
@@ -115,6 +118,12 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
         }
         if line.has_member is not None:
             lines[name]["collector_member"] = line.has_member
+        if line.collector_segments:
+            lines[name]["collector_members"] = [
+                {"kind": kind, "from": _r(units.length_out(a)), "to": _r(units.length_out(b)),
+                 "EA": _r(units.force_out(EA))}
+                for kind, a, b, EA in line.collector_segments
+            ]
         if line.side_shear is not None:
             lines[name]["delivered_shear_diagram"] = [
                 [_r(units.length_out(t)), _r(units.line_force_out(a)), _r(units.line_force_out(b))]
@@ -163,6 +172,17 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
     return out
 
 
+def wall_piece_to_json(piece: dict, units: OutputUnits) -> dict:
+    """A wall piece (SI dict: line, from, to, walls, collector, segments) in output units."""
+    out = {"line": piece["line"], "from": _r(units.length_out(piece["from"])), "to": _r(units.length_out(piece["to"])),
+           "walls": list(piece["walls"])}
+    if "collector" in piece:
+        out["collector"] = piece["collector"]
+        out["segments"] = [{"kind": kind, "from": _r(units.length_out(a)), "to": _r(units.length_out(b)),
+                            "EA": _r(units.force_out(EA))} for kind, a, b, EA in piece["segments"]]
+    return out
+
+
 def method_to_json(method: MethodResult, units: OutputUnits) -> dict:
     out = {
         "cases": {name: case_to_json(case, units) for name, case in method.cases.items()},
@@ -171,6 +191,11 @@ def method_to_json(method: MethodResult, units: OutputUnits) -> dict:
     for key, value in method.extra.items():
         if key == "center_of_rigidity":
             out[key] = [_r(units.length_out(float(c))) for c in value]
+        elif key in ("wall_pieces", "wall_pieces_without_member"):
+            out[key] = [wall_piece_to_json(piece, units) for piece in value]
+        elif key == "implied_collector_EA":
+            out[key] = None if value is None else {"value": _r(units.force_out(value["value"])), "unit": units.force,
+                                                   "source": value["source"]}
         else:
             out[key] = value
     return out
@@ -245,6 +270,9 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
         for name, slots in envelope.collectors.items()
     }
     collectors = table(envelope.collectors)
+    for name, kind in envelope.collector_basis.items():
+        collectors.setdefault(name, {})["collector_in_model"] = kind
+        lines.setdefault(name, {})["collector_in_model"] = kind
     for name, text in envelope.cautions.items():
         collectors.setdefault(name, {})["caution"] = text
         lines.setdefault(name, {})["caution"] = text

@@ -15,7 +15,7 @@ from .fem import Solution, assemble, load_vectors, solve
 from .loads import LoadCase
 from .mesh import Mesh, build_mesh
 from .plan import Plan
-from .postprocess.line_cuts import line_results_all_cases, membrane_forces
+from .postprocess.line_cuts import collector_notes, line_results_all_cases, membrane_forces
 from .results import CaseResult, MethodResult
 
 __all__ = ["SemirigidRun", "semirigid_analysis"]
@@ -80,17 +80,11 @@ def semirigid_analysis(
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "
         f"freedom, factorized once ({solution.backend}) for {len(selected)} cases",
     ]
-    bare = sorted({name for lines, *_ in per_case for name, line in lines.items()
-                   if line.has_member is False and any(w.line == name for w in plan.walls)})
-    if bare:
-        notes.append(
-            "lines with walls but no collector member: " + ", ".join(bare) + "; their semi-rigid collector "
-            "force is zero because the sheathing itself drags the load to the walls. Add a collector "
-            "[[member]] on these lines to read the force a collector would carry"
-        )
+    piece_notes, piece_extra = collector_notes(plan, assembly.collectors)
+    notes += piece_notes
     extra = {"mesh": {"elements": int(len(mesh.elements)), "element_type": mesh.element_type,
                       "nodes": int(mesh.n_nodes), "dofs": int(mesh.n_dofs), "solver": solution.backend},
-             "lines_without_member": bare}
+             **piece_extra}
     if stiffness_factor != 1.0:
         extra["stiffness_factor"] = stiffness_factor
     return SemirigidRun(MethodResult("semirigid", results, tuple(notes), extra), mesh, solution, membrane)

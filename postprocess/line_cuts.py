@@ -43,12 +43,14 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse as sp
 
+from planshear.fem.collectors import CollectorLayout, WallPiece
 from planshear.fem.elements import _geometry, bar_axial_force, membrane_strain_matrix
 from planshear.fem.model import Solution, element_dofs
 from planshear.plan import GridLine, Plan
 from planshear.results import ChordResult, LineResult
+from planshear.units import OutputUnits
 
-__all__ = ["LineCut", "cut_line", "line_results_all_cases", "membrane_forces", "outline_edge_chords"]
+__all__ = ["LineCut", "collector_notes", "cut_line", "line_results_all_cases", "membrane_forces", "outline_edge_chords"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -286,6 +288,12 @@ def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray)
     incidence = _incidence(mesh)
     cuts = {g.name: cut_line(plan, solution, g, incidence, centroids, membrane) for g in plan.grid_lines}
     chords = outline_edge_chords(plan, solution)
+    layout = solution.assembly.collectors
+    segments = {}
+    if layout is not None:
+        for piece in layout.pieces:
+            segments.setdefault(piece.line, ())
+            segments[piece.line] += tuple((s.kind, s.t_from, s.t_to, s.EA) for s in piece.segments)
     per_case = []
     for j in range(solution.displacements.shape[1]):
         lines = {}
@@ -305,6 +313,7 @@ def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray)
                 residual=float(cut.residual[j]),
                 side_shear=np.column_stack([cut.t, q_left, q_right]),
                 has_member=cut.has_bar,
+                collector_segments=segments.get(name, ()),
             )
         chord_results = {name: ChordResult(name, st, val[:, j]) for name, (st, val) in chords.items()}
         for member in plan.members:
@@ -324,3 +333,50 @@ def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray)
             by_zone[name] = (float(shear[best]), centroids[best])
         per_case.append((lines, chord_results, (float(shear[k]), centroids[k]), by_zone))
     return per_case
+
+
+def collector_notes(plan: Plan, layout: CollectorLayout | None) -> tuple[list[str], dict]:
+    """Notes and result entries on the collector of every wall piece (SI): which pieces
+    carry a declared member, the outline chord, an implied collector (and its assumed EA)
+    or nothing. Returns (notes, extra) with extra keys ``wall_pieces``,
+    ``wall_pieces_without_member`` (read by the envelope's caution) and
+    ``implied_collector_EA``."""
+    if layout is None:
+        return [], {}
+    units = OutputUnits.for_plan(plan.length_unit)
+
+    def where(piece: WallPiece) -> str:
+        a, b = units.length_out(piece.t_from), units.length_out(piece.t_to)
+        return f"{piece.line} ({a:.4g}–{b:.4g} {units.length}, walls {', '.join(piece.walls)})"
+
+    pieces = [{"line": p.line, "from": p.t_from, "to": p.t_to, "walls": p.walls, "collector": p.kind,
+               "segments": [(s.kind, s.t_from, s.t_to, s.EA) for s in p.segments]} for p in layout.pieces]
+    bare = [p for p in layout.pieces if any(s.kind == "none" for s in p.segments)]
+    implied = [p for p in layout.pieces if any(s.kind == "implied" for s in p.segments)]
+    chord = [p for p in layout.pieces if any(s.kind == "chord" for s in p.segments)]
+    notes = []
+    if implied:
+        source = ("[diaphragm] collector_EA" if layout.EA_source == "collector_EA"
+                  else "chord_EA, the default of [diaphragm] collector_EA")
+        notes.append(
+            "implied collectors on the wall pieces of lines " + "; ".join(where(p) for p in implied)
+            + f": no declared member covers them, so the model gives each the collector a drag strut would be, "
+            f"a bar of EA = {units.force_out(layout.EA):.6g} {units.force} (from {source}) over the whole piece; "
+            "their semi-rigid collector forces depend on this assumed EA"
+        )
+    if chord:
+        notes.append("the outline chord bar is read as the collector of the wall pieces of lines "
+                     + "; ".join(where(p) for p in chord))
+    if bare:
+        notes.append(
+            "wall pieces without a collector: " + "; ".join(where(p) for p in bare)
+            + ": no declared member and neither [diaphragm] collector_EA nor chord_EA to imply one, so their "
+            "semi-rigid collector force is zero (the sheathing itself drags the load to the walls). Give "
+            "[diaphragm] collector_EA or a collector [[member]] to read the force a collector would carry"
+        )
+    extra = {
+        "wall_pieces": pieces,
+        "wall_pieces_without_member": [{"line": p.line, "from": p.t_from, "to": p.t_to, "walls": p.walls} for p in bare],
+        "implied_collector_EA": None if layout.EA is None else {"value": layout.EA, "source": layout.EA_source},
+    }
+    return notes, extra

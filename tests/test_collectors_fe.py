@@ -6,10 +6,11 @@ import pytest
 
 from planshear.fem.elements import bar_axial_force, bar_stiffness, edge_load
 from planshear.loads import expand_load_cases
+from planshear.run import analyze
 from planshear.semirigid import semirigid_analysis
 
-from conftest import KIP
-from test_semirigid import centred_wall_plan
+from conftest import FT, KIP
+from test_semirigid import box, centred_wall_plan, wall
 
 
 def test_quadratic_bar_picking_up_a_uniform_shear_flow_is_exact():
@@ -64,3 +65,86 @@ def test_collector_diagram_is_continuous_and_free_ends_carry_nothing(plan_from):
         assert np.all(np.diff(chord.stations) >= 0)
         assert np.max(np.abs(np.diff(chord.force)[1::2])) < 2e-3 * 25 * KIP
     assert case.chords["edge 3"].peak / KIP == pytest.approx(25.0, rel=0.01)
+
+
+def three_line_plan(extra_diaphragm: str = "", members: str = "", chord_EA: str | None = "1e6 kip",
+                    opening: bool = False) -> str:
+    """100 × 50 ft, 20 kip along y: stiff full-depth walls on lines 1 and 2, a 20-ft wall
+    WM on the interior line M (x = 50 ft) from y = 15 to 35 ft, short walls mid-chord."""
+    walls = (wall("W1", "1", 0, 50, "1e4 kip/in") + wall("W2", "2", 0, 50, "1e4 kip/in")
+             + wall("WM", "M", 15, 35, "1e4 kip/in") + wall("WA", "A", 45, 55, "50 kip/in")
+             + wall("WB", "B", 45, 55, "50 kip/in"))
+    if opening:  # the opening splits line M into 0–38 and 44–50 ft; WM lies on the first piece
+        walls = walls.replace('line = "M"\nfrom = 15\nto = 35', 'line = "M"\nfrom = 15\nto = 30')
+    text = box(walls=walls + members, lines_x={"1": 0, "M": 50, "2": 100}, mesh_size=2.5,
+               chord_EA=chord_EA or "1 kip", extra="")
+    if opening:
+        text = text.replace("material =", "openings = [[[46, 38], [54, 38], [54, 44], [46, 44]]]\nmaterial =", 1)
+    dia = f'chord_EA = "{chord_EA}"\n' if chord_EA else ""
+    return text.replace(f'chord_EA = "{chord_EA or "1 kip"}"\n', dia + extra_diaphragm)
+
+
+def test_implied_collector_equals_a_declared_one_and_matches_statics(plan_from):
+    """A wall line without a member gets an implied collector of EA = collector_EA over the
+    whole piece: the model is then the same as with a declared collector of that EA on the
+    line (same wall forces and collector diagram to round-off). Statics (VALIDATION.md 6.6,
+    beam analogy): with the line's reaction R delivered uniformly over the 50-ft line, the
+    collector carries R·15/50 at the wall ends; the finite-element value agrees within 2 %
+    (the delivered shear is not exactly uniform along the line in the elastic model)."""
+    implied = plan_from(three_line_plan('collector_EA = "1e5 kip"\n'))
+    declared = plan_from(three_line_plan(members='\n[[member]]\nrole = "collector"\nline = "M"\nEA = "1e5 kip"\n'))
+    a = semirigid_analysis(implied, expand_load_cases(implied)).result
+    b = semirigid_analysis(declared, expand_load_cases(declared)).result
+    for name in a.cases:
+        for wall_id, force in a.cases[name].wall_forces.items():
+            assert force == pytest.approx(b.cases[name].wall_forces[wall_id], rel=1e-9, abs=1e-9 * KIP)
+        assert a.cases[name].lines["M"].collector == pytest.approx(b.cases[name].lines["M"].collector, rel=1e-9, abs=1e-6)
+    line = a.cases["E+y"].lines["M"]
+    assert abs(line.peak) == pytest.approx(abs(line.reaction) * 15 / 50, rel=0.02)
+    assert min(abs(line.peak_position / FT - 15), abs(line.peak_position / FT - 35)) < 1e-6
+    assert [s[0] for s in line.collector_segments] == ["implied"]
+    assert [s[0] for s in b.cases["E+y"].lines["M"].collector_segments] == ["declared"]
+    assert line.collector_segments[0][3] / KIP == pytest.approx(1e5)
+    assert any("implied collectors" in note and "collector_EA" in note for note in a.notes)
+    assert a.extra["implied_collector_EA"]["source"] == "collector_EA"
+    # Lines along the outline read the chord bar as their collector; no second bar is added.
+    assert {p["line"]: p["collector"] for p in a.extra["wall_pieces"]} == {
+        "1": "chord", "2": "chord", "A": "chord", "B": "chord", "M": "implied"}
+
+
+def test_default_collector_EA_is_chord_EA_and_partial_members_are_completed(plan_from):
+    """Without collector_EA the implied collector takes chord_EA. A declared member over
+    part of a wall piece keeps its EA there; implied bars fill the rest of the piece. A
+    piece of the same line cut off by an opening and carrying no wall gets no bar."""
+    member = '\n[[member]]\nrole = "collector"\nline = "M"\nEA = "5000 kip"\nfrom = 0\nto = 10\n'
+    plan = plan_from(three_line_plan(members=member, opening=True))
+    run = semirigid_analysis(plan, expand_load_cases(plan))
+    (piece,) = [p for p in run.solution.assembly.collectors.pieces if p.line == "M"]
+    assert piece.t_from == pytest.approx(0.0) and piece.t_to / FT == pytest.approx(38.0)
+    kinds = [(s.kind, round(s.t_from / FT, 6), round(s.t_to / FT, 6), round(s.EA / KIP, 6)) for s in piece.segments]
+    assert kinds == [("declared", 0.0, 10.0, 5000.0), ("implied", 10.0, 38.0, 1e6)]
+    implied_bars = [b for b in run.solution.assembly.bars if b.implied]
+    assert len(implied_bars) == 1
+    t_bars = run.mesh.nodes[implied_bars[0].edges][..., 1] / FT
+    assert t_bars.min() == pytest.approx(10.0) and t_bars.max() == pytest.approx(38.0)
+    assert run.result.extra["implied_collector_EA"]["source"] == "chord_EA"
+    assert run.result.extra["wall_pieces_without_member"] == []
+
+
+def test_caution_per_wall_piece_without_any_collector(plan_from):
+    """Without chord_EA and collector_EA no EA can be assumed: a wall piece with no member
+    is flagged, by its walls, even when a member covers another part of the same line (the
+    line used to pass unflagged as soon as any bar lay on it)."""
+    member = '\n[[member]]\nrole = "chord"\nline = "M"\nEA = "5000 kip"\nfrom = 44\nto = 50\n'
+    plan = plan_from(three_line_plan(members=member, chord_EA=None, opening=True))
+    result = analyze(plan)
+    caution = result.envelope.cautions["M"]
+    assert "WM" in caution
+    assert {"1", "2", "A", "B", "M"} <= set(result.envelope.cautions)
+    doc = result.to_json()
+    (bare,) = [p for p in doc["assumptions"]["semirigid"]["wall_pieces_without_member"] if p["line"] == "M"]
+    assert bare == {"line": "M", "from": 0.0, "to": 38.0, "walls": ["WM"]}
+    assert doc["envelope"]["collectors"]["M"]["collector_in_model"] == "none"
+    assert any("wall pieces without a collector" in note for note in doc["assumptions"]["semirigid"]["notes"])
+    members = doc["assumptions"]["semirigid"]["cases"]["E+y"]["lines"]["M"]["collector_members"]
+    assert members == [{"kind": "none", "from": 0.0, "to": 38.0, "EA": 0.0}]
