@@ -177,10 +177,44 @@ def _print_results(results: Results, out: Path) -> None:
         design = slots.get("design")
         if design:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
+    _print_walls_along_chords(doc)
     for assumption, reason in doc["unavailable"].items():
         print(f"\n{assumption}: not run — {reason}")
     print(f"\nresults written to {out}/")
     print(CAUTION)
+
+
+def _print_walls_along_chords(doc: dict) -> None:
+    """Walls along chord lines: the chord force they take over in the semi-rigid model."""
+    cases = doc["assumptions"].get("semirigid", {}).get("cases", {})
+    if not cases:
+        return
+    force, position = doc["units"]["force"], doc["units"]["position"]
+    print(f"\nwalls along chord lines (semi-rigid, {force}): force that walls on a chord edge take out of the chord "
+          "(self-equilibrating, from chord elongation), against M/d of the beam analogy from the same case's wall "
+          "forces; shown from 5 % of M/d")
+    shown = False
+    for case_name, case in cases.items():
+        info = case.get("walls_along_chords") or {"lines": {}, "chords": {}}
+        for edge, c in info["chords"].items():
+            if abs(c["walls_share"]) < 0.05:
+                continue
+            shown = True
+            print(f"  {case_name} {edge} at {c['at']:.4g} {position}: walls take {c['walls_force']:.2f} of "
+                  f"M/d {c['M_over_d']:.2f} ({100 * c['walls_share']:.0f} %); chord N {c['chord_force']:.2f}")
+        threshold = 0.01 * abs(case["applied_force"])
+        lines = [(name, item) for name, item in info["lines"].items() if abs(item["restraint_force"]) >= threshold]
+        if lines:
+            shown = True
+            name, item = max(lines, key=lambda pair: abs(pair[1]["restraint_force"]))
+            text = (f"  {case_name}: walls on line {name} take {item['restraint_force']:.2f} from chord elongation "
+                    f"(at {item['at']:.4g} {position})")
+            wall, value = max(((w, f) for _, i in lines for w, f in i["self_equilibrating"].items()), key=lambda p: abs(p[1]))
+            if abs(value) >= threshold:
+                text += f"; largest such force in one wall: {wall} {value:.2f}"
+            print(text)
+    if not shown:
+        print("  none above 5 % of M/d or 1 % of the applied force")
 
 
 if __name__ == "__main__":

@@ -165,6 +165,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
                 zone: {"value": _r(units.line_force_out(v)), "at": [_r(units.length_out(c)) for c in at]}
                 for zone, (v, at) in value.items()
             }
+        elif key == "walls_along_chords":
+            out[key] = walls_along_chords_to_json(value, units)
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:
@@ -181,6 +183,26 @@ def wall_piece_to_json(piece: dict, units: OutputUnits) -> dict:
         out["segments"] = [{"kind": kind, "from": _r(units.length_out(a)), "to": _r(units.length_out(b)),
                             "EA": _r(units.force_out(EA))} for kind, a, b, EA in piece["segments"]]
     return out
+
+
+def walls_along_chords_to_json(value: dict, units: OutputUnits) -> dict:
+    """Forces that walls along chord lines take from chord elongation (see
+    postprocess/chord_restraint.py), in output units."""
+    force, length = units.force_out, units.length_out
+    return {
+        "lines": {
+            name: {"walls": list(item["walls"]), "net_force": _r(force(item["net_force"])),
+                   "restraint_force": _r(force(item["restraint_force"])), "at": _r(length(item["at"])),
+                   "self_equilibrating": {w: _r(force(f)) for w, f in item["self_equilibrating"].items()}}
+            for name, item in value["lines"].items()
+        },
+        "chords": {
+            name: {"at": _r(length(item["at"])), "M_over_d": _r(force(item["M_over_d"])),
+                   "chord_force": _r(force(item["chord_force"])), "share_lost": _r(item["share_lost"], 4),
+                   "walls_force": _r(force(item["walls_force"])), "walls_share": _r(item["walls_share"], 4)}
+            for name, item in value["chords"].items()
+        },
+    }
 
 
 def method_to_json(method: MethodResult, units: OutputUnits) -> dict:

@@ -15,6 +15,7 @@ from .fem import Solution, assemble, load_vectors, solve
 from .loads import LoadCase
 from .mesh import Mesh, build_mesh
 from .plan import Plan
+from .postprocess.chord_restraint import walls_along_chords
 from .postprocess.line_cuts import collector_notes, line_results_all_cases, membrane_forces
 from .results import CaseResult, MethodResult
 
@@ -55,6 +56,7 @@ def semirigid_analysis(
     results = {}
     membrane = membrane_forces(solution)
     per_case = line_results_all_cases(plan, solution, membrane)
+    restraint = walls_along_chords(plan, solution, selected, [chords for _, chords, *_ in per_case])
     for j, case in enumerate(selected):
         forces = {wall_id: float(f[j]) for wall_id, f in solution.wall_forces.items()}
         total = sum(forces[w.id] * w.direction for w in plan.walls)
@@ -74,7 +76,8 @@ def semirigid_analysis(
             max_unit_shear_at=unit_shear[1],
             max_displacement=float(np.max(np.hypot(u[:, 0], u[:, 1]))),
             equilibrium_residual=max(residual, float(solution.residual[j])),
-            extra={"solver_residual": float(f"{solution.residual[j]:.3e}"), "unit_shear_by_zone": by_zone},
+            extra={"solver_residual": float(f"{solution.residual[j]:.3e}"), "unit_shear_by_zone": by_zone,
+                   "walls_along_chords": restraint[j]},
         )
     notes = [
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "
