@@ -92,28 +92,36 @@ def walls_along_chords(plan: Plan, solution: Solution, cases: list[LoadCase],
     "M_over_d", "chord_force", "share_lost", "walls_force", "walls_share"}}}``.
     ``fe_chords`` are the finite-element chord diagrams of each case."""
     springs = {s.wall_id: s for s in solution.assembly.springs}
-    walls_by_line: dict[str, list] = {}
-    for w in plan.walls:
-        walls_by_line.setdefault(w.line, []).append(w)
     extent = float(np.ptp(plan.outline, axis=0).max())
     tol = 1e-7 * extent
+    # Running wall forces of every line with walls and of every outline edge, all cases at once.
+    line_profiles = {}
+    for grid_line in plan.grid_lines:
+        walls = [w for w in plan.walls if w.line == grid_line.name]
+        if walls:
+            line_profiles[grid_line.name] = (grid_line, walls, *restraint_profile(
+                [springs[w.id] for w in walls], solution, grid_line.origin, grid_line.direction))
+    edge_profiles = {}
+    for i, a in enumerate(plan.outline):
+        b = plan.outline[(i + 1) % len(plan.outline)]
+        e = (b - a) / np.linalg.norm(b - a)
+        on_edge = [springs[w.id] for w in plan.walls
+                   if max(abs(_cross(e, w.start - a)), abs(_cross(e, w.end - a))) <= tol]
+        if on_edge:
+            edge_profiles[f"edge {i + 1}"] = restraint_profile(on_edge, solution, a, e)[:2]
     results = []
     for j, case in enumerate(cases):
-        load = case.direction
         lines = {}
         # Wall forces for the beam analogy: walls across the load keep only the share that
         # equilibrium needs (their self-equilibrating part would enter M as a couple).
         needed = {w.id: float(solution.wall_forces[w.id][j]) * w.direction for w in plan.walls}
-        for grid_line in plan.grid_lines:
-            walls = walls_by_line.get(grid_line.name, [])
-            if not walls or abs(float(grid_line.direction @ load)) > 1e-9:
-                continue
-            t, running, net = restraint_profile([springs[w.id] for w in walls], solution, grid_line.origin,
-                                                grid_line.direction)
+        for name, (grid_line, walls, t, running, net) in line_profiles.items():
+            if abs(float(grid_line.direction @ case.direction)) > 1e-9:
+                continue  # not across the load
             k = int(np.argmax(np.abs(running[:, j])))
             k_total = sum(w.k for w in walls)
             forces = {w.id: float(solution.wall_forces[w.id][j] * (w.direction @ grid_line.direction)) for w in walls}
-            lines[grid_line.name] = {
+            lines[name] = {
                 "walls": tuple(w.id for w in walls),
                 "net_force": float(net[j]),
                 "restraint_force": float(running[k, j]),
@@ -128,18 +136,13 @@ def walls_along_chords(plan: Plan, solution: Solution, cases: list[LoadCase],
             for name, (stations, m_over_d) in edge_chords(plan, analogy.chord).items():
                 if name not in fe_chords[j] or not np.any(m_over_d):
                     continue
-                i = int(name.split()[-1]) - 1
-                a, b = plan.outline[i], plan.outline[(i + 1) % len(plan.outline)]
-                e = (b - a) / np.linalg.norm(b - a)
                 k = int(np.argmax(np.abs(m_over_d)))
                 at, reference = float(stations[k]), float(m_over_d[k])
                 fe = fe_chords[j][name]
                 chord_force = float(np.interp(at, fe.stations, fe.force))
-                on_edge = [springs[w.id] for w in plan.walls
-                           if max(abs(_cross(e, w.start - a)), abs(_cross(e, w.end - a))) <= tol]
                 walls_force = 0.0
-                if on_edge:
-                    t, running, _ = restraint_profile(on_edge, solution, a, e)
+                if name in edge_profiles:
+                    t, running = edge_profiles[name]
                     # W is a step function: constant between nodes, changing at each node.
                     before = int(np.searchsorted(t, at + tol, side="right")) - 1
                     walls_force = float(running[before, j]) if before >= 0 else 0.0
