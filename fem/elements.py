@@ -27,6 +27,7 @@ __all__ = [
     "area_load",
     "edge_shape",
     "bar_stiffness",
+    "bar_axial_force",
     "line_spring_stiffness",
     "edge_load",
 ]
@@ -230,6 +231,24 @@ def bar_stiffness(xy: np.ndarray, EA: np.ndarray) -> np.ndarray:
     length, tangent = _edge_frame(xy)
     scalar = _line_matrix("stiffness", xy.shape[1], length) * EA[:, None, None]
     return _expand(scalar, tangent)
+
+
+def bar_axial_force(xy: np.ndarray, EA: np.ndarray, u_e: np.ndarray, s: np.ndarray) -> np.ndarray:
+    """Axial force N = EA·ε (N, tension positive) of straight bars at the points ``s``
+    (n_s,) of [−1, 1] (−1: the edge's start node, +1: its end node): (m, n_s, c).
+
+    ``xy`` (m, n, 2) nodes in edge order (start, end[, mid]), ``EA`` (m,) in N, ``u_e``
+    (m, 2n, c) element displacements (interleaved, m) for c cases. ε is the derivative
+    of the displacement along the bar, du/dx = (2/L)·Σ N_i'(s)·u_i; for a 3-node bar it
+    is linear in s, so it represents exactly the linear N(s) of a bar that picks up a
+    uniform shear flow. The element's nodal forces differ from it: the start nodal
+    force is −(N_start + ΔN/6) for such a bar (ΔN = N_end − N_start)."""
+    length, tangent = _edge_frame(xy)
+    m, n, _ = xy.shape
+    along = np.einsum("mndc,md->mnc", u_e.reshape(m, n, 2, -1), tangent)
+    _, dN = edge_shape(n, np.asarray(s, dtype=float))
+    strain = np.einsum("qn,mnc->mqc", dN, along) * (2.0 / length)[:, None, None]
+    return strain * np.asarray(EA, dtype=float)[:, None, None]
 
 
 def line_spring_stiffness(xy: np.ndarray, k_per_length: np.ndarray, direction: np.ndarray) -> np.ndarray:

@@ -19,6 +19,7 @@ from planshear.loads import LoadCase
 from planshear.mesh import LineMesh, Mesh
 from planshear.plan import Material, Plan
 
+from .collectors import CollectorLayout, collector_layout
 from .elements import (
     area_load,
     bar_stiffness,
@@ -50,6 +51,7 @@ class BarGroup:
     edges: np.ndarray
     EA: float
     matrices: np.ndarray  # (m, 2k, 2k)
+    implied: bool = False  # an implied collector (see fem/collectors.py), not a declared member
 
 
 @dataclass(frozen=True, eq=False)
@@ -74,6 +76,7 @@ class Assembly:
     bars: tuple[BarGroup, ...]
     springs: tuple[SpringGroup, ...]
     spring_matrix: sp.csr_matrix
+    collectors: CollectorLayout | None = None  # the collector of every wall piece
 
 
 @dataclass(frozen=True, eq=False)
@@ -157,6 +160,11 @@ def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
     for member, line_mesh in zip(plan.members, mesh.members, strict=True):
         if len(line_mesh.edges):
             bars.append(_bar_group(f"{member.role} on {member.line}", member.role, line_mesh.edges, member.EA, mesh))
+    # Every piece of a line that carries a wall gets a collector: implied bars where no
+    # declared member or outline chord is (fem/collectors.py).
+    collectors = collector_layout(plan, mesh)
+    for name, edges in collectors.implied_edges.items():
+        bars.append(_bar_group(f"implied collector on {name}", "collector", edges, collectors.EA, mesh, implied=True))
     for bar in bars:
         dofs.append(element_dofs(bar.edges))
         blocks.append(bar.matrices)
@@ -173,12 +181,12 @@ def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
     spring_matrix = _coo_to_csr(spring_blocks, n)
     # One COO → CSR conversion for membrane, bars and springs together.
     stiffness = _coo_to_csr(list(zip(dofs, blocks, strict=True)) + spring_blocks, n)
-    return Assembly(mesh, stiffness, D, element_matrices, tuple(bars), tuple(springs), spring_matrix)
+    return Assembly(mesh, stiffness, D, element_matrices, tuple(bars), tuple(springs), spring_matrix, collectors)
 
 
-def _bar_group(name: str, role: str, edges: np.ndarray, EA: float, mesh: Mesh) -> BarGroup:
+def _bar_group(name: str, role: str, edges: np.ndarray, EA: float, mesh: Mesh, implied: bool = False) -> BarGroup:
     matrices = bar_stiffness(mesh.nodes[edges], np.full(len(edges), EA))
-    return BarGroup(name, role, edges, EA, matrices)
+    return BarGroup(name, role, edges, EA, matrices, implied)
 
 
 def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:

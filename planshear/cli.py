@@ -176,19 +176,56 @@ def _print_results(results: Results, out: Path) -> None:
         design = envelope.get("walls", {}).get(wall, {}).get("design")
         tail = f"{design['value']:11.2f}  {design['assumption']} {design['case']}" if design else ""
         print("  " + wall.ljust(8) + "".join(cells) + tail)
-    print(f"\ncollector peaks ({force}): design envelope and with overstrength Ω0 (seismic cases)")
+    print(f"\ncollector peaks ({force}): design envelope and with overstrength Ω0 (seismic cases); "
+          "[collector in the semi-rigid model: declared member, outline chord, implied, none]")
     for name, slots in envelope.get("collectors", {}).items():
         design, omega = slots.get("design"), slots.get("with_overstrength")
         if design:
+            basis = slots.get("collector_in_model")
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
-                  f"×Ω0: {omega['value']:.2f}" + ("   (!) no collector member in the model" if "caution" in slots else ""))
+                  f"×Ω0: {omega['value']:.2f}" + (f"   [{basis}]" if basis else "")
+                  + ("   (!) no collector bar in the model" if "caution" in slots else ""))
     print(f"\nchord peaks ({force}, tension +)")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
+    _print_walls_along_chords(doc)
     print(f"\nresults written to {out}/")
     print(CAUTION)
+
+
+def _print_walls_along_chords(doc: dict) -> None:
+    """Walls along chord lines: the chord force they take over in the semi-rigid model."""
+    cases = doc["assumptions"].get("semirigid", {}).get("cases", {})
+    if not cases:
+        return
+    force, position = doc["units"]["force"], doc["units"]["position"]
+    print(f"\nwalls along chord lines (semi-rigid, {force}): force that walls on a chord edge take out of the chord "
+          "(self-equilibrating, from chord elongation), against M/d of the beam analogy from the same case's wall "
+          "forces; shown from 5 % of M/d")
+    shown = False
+    for case_name, case in cases.items():
+        info = case.get("walls_along_chords") or {"lines": {}, "chords": {}}
+        for edge, c in info["chords"].items():
+            if abs(c["walls_share"]) < 0.05:
+                continue
+            shown = True
+            print(f"  {case_name} {edge} at {c['at']:.4g} {position}: walls take {c['walls_force']:.2f} of "
+                  f"M/d {c['M_over_d']:.2f} ({100 * c['walls_share']:.0f} %); chord N {c['chord_force']:.2f}")
+        threshold = 0.01 * abs(case["applied_force"])
+        lines = [(name, item) for name, item in info["lines"].items() if abs(item["restraint_force"]) >= threshold]
+        if lines:
+            shown = True
+            name, item = max(lines, key=lambda pair: abs(pair[1]["restraint_force"]))
+            text = (f"  {case_name}: walls on line {name} take {item['restraint_force']:.2f} from chord elongation "
+                    f"(at {item['at']:.4g} {position})")
+            wall, value = max(((w, f) for _, i in lines for w, f in i["self_equilibrating"].items()), key=lambda p: abs(p[1]))
+            if abs(value) >= threshold:
+                text += f"; largest such force in one wall: {wall} {value:.2f}"
+            print(text)
+    if not shown:
+        print("  none above 5 % of M/d or 1 % of the applied force")
 
 
 if __name__ == "__main__":

@@ -216,6 +216,19 @@ class Plan:
     loads: tuple[Load, ...]
     mesh: MeshSettings
     classification: ClassificationFlags
+    collector_EA: float | None = None  # N, [diaphragm] collector_EA as written (None if absent)
+
+    @property
+    def implied_collector_EA(self) -> tuple[float | None, str | None]:
+        """EA (N) of the implied collectors of the semi-rigid model and where it comes
+        from: ``collector_EA`` when given, else ``chord_EA`` (the plan's stated edge
+        member, the usual class of a drag strut: top plates, deck edge angles, slab
+        reinforcement), else (None, None): no implied collector is formed."""
+        if self.collector_EA is not None:
+            return self.collector_EA, "collector_EA"
+        if self.chord_EA is not None:
+            return self.chord_EA, "chord_EA"
+        return None, None
 
     def line(self, name: str) -> GridLine:
         for grid_line in self.grid_lines:
@@ -395,6 +408,9 @@ class _PlanBuilder:
         chord_EA = None
         if "chord_EA" in dia:
             chord_EA = self.quantity(dia["chord_EA"], FORCE, "diaphragm.chord_EA")
+        collector_EA = None
+        if "collector_EA" in dia:
+            collector_EA = self.quantity(dia["collector_EA"], FORCE, "diaphragm.collector_EA")
 
         zones = []
         for i, raw in enumerate(dia.get("zone", [])):
@@ -448,6 +464,7 @@ class _PlanBuilder:
             loads=tuple(loads),
             mesh=mesh,
             classification=classification,
+            collector_EA=collector_EA,
         )
         check_stability(plan)
         return plan

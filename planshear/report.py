@@ -52,6 +52,14 @@ METHODS_TEXT = [
      "scikit-fem and the SDPWS deflection equation (see the test suite)."),
     ("Line cuts", "Shear delivered from each side of a line from the element nodal forces (exact equilibrium); "
      "collector force = bar force plus the membrane force within the stated effective width."),
+    ("Collectors in the model", "Every piece of a line of resistance that carries a wall has a collector bar: a "
+     "declared member, the outline chord where the line runs along the outline, or an implied bar of EA = "
+     "[diaphragm] collector_EA (default chord_EA) over the whole piece; without either EA the piece has no bar and "
+     "is flagged. Bar forces are EA·ε at the element ends."),
+    ("Walls along chord lines", "A wall on a line across the load resists the chord's elongation; its forces "
+     "beyond a rigid-body share of the line's net force are self-equilibrating and are reported per line with "
+     "their running sum, and each chord's force is compared with M/d of the beam analogy from the same case's "
+     "finite-element wall forces."),
     ("Classification", "ASCE 7-16 §12.3.1.3: MDD / ADVE > 2 in every span → may be idealized as flexible; "
      "MDD is the diaphragm's deflection averaged across its depth (sections through the plan, openings "
      "excluded) relative to the line between the support drifts, at the station where it is largest; the "
@@ -60,6 +68,15 @@ METHODS_TEXT = [
     ("Envelope", "Largest magnitude over allowed assumptions and all cases; accidental torsion never reduces a "
      "force because base and ±ecc cases are enveloped together; collector forces also × Ω0 for seismic cases."),
 ]
+
+CHORD_WALLS_TEXT = (
+    "Semi-rigid model. A wall under a chord line resists the chord's change of length and takes force out of "
+    "the chord: 'M/d' is the chord force of the beam analogy computed from the same case's finite-element wall "
+    "forces, 'chord N' the finite-element chord force at the same place, 'lost' = 1 − N/(M/d), 'walls take' the "
+    "running sum of the self-equilibrating wall forces on that edge there (chord N + walls ≈ M/d; the rest is "
+    "in the membrane). These wall forces are real in the elastic model: design the walls and their connection "
+    "to the chord for them, or do not count on them and design the chord for M/d."
+)
 
 LIMITATIONS_TEXT = [
     "Linear elastic analysis; wood and steel-deck stiffness values are secant values that the engineer chooses.",
@@ -168,10 +185,11 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     headers += [f"design ({f})", "governs"]
     tables["walls"] = (headers, rows)
     tables["collectors"] = (
-        ["line", f"design peak ({f})", "governs", f"with Ω0 ({f})", f"largest of all assumptions ({f})", "caution"],
+        ["line", f"design peak ({f})", "governs", f"with Ω0 ({f})", f"largest of all assumptions ({f})",
+         "collector in the semi-rigid model", "caution"],
         [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["with_overstrength"] and s["with_overstrength"]["value"], s["information"] and s["information"]["value"],
-          "no collector member in the model" if "caution" in s else ""]
+          s.get("collector_in_model", ""), "no collector bar in the model" if "caution" in s else ""]
          for n, s in envelope["collectors"].items()],
     )
     tables["chords"] = (
@@ -179,6 +197,21 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
         [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["information"] and s["information"]["value"]] for n, s in envelope["chords"].items()],
     )
+    rows, line_rows = [], []
+    for case_name, case in doc["assumptions"].get("semirigid", {}).get("cases", {}).items():
+        info = case.get("walls_along_chords") or {"lines": {}, "chords": {}}
+        for edge, c in info["chords"].items():
+            rows.append([case_name, edge, c["at"], c["M_over_d"], c["chord_force"], round(100 * c["share_lost"], 1),
+                         c["walls_force"], round(100 * c["walls_share"], 1)])
+        for name, item in info["lines"].items():
+            wall, value = max(item["self_equilibrating"].items(), key=lambda pair: abs(pair[1]))
+            line_rows.append([case_name, name, item["restraint_force"], item["at"], item["net_force"], wall, value])
+    tables["chord_walls"] = (
+        ["case", "edge", f"at ({p})", f"M/d ({f})", f"chord N ({f})", "lost (%)", f"walls take ({f})", "walls (% of M/d)"],
+        rows)
+    tables["walls_across"] = (
+        ["case", "line", f"force from chord elongation ({f})", f"at ({p})", f"net line force ({f})",
+         "wall with the largest", f"its self-equilibrating force ({f})"], line_rows)
     rows = []
     semi = doc["assumptions"].get("semirigid", {}).get("cases", {})
     for case_name, case in semi.items():
@@ -365,6 +398,8 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("cases", "Load cases"),
                            ("classification", "Flexibility check"), ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
+                           ("chord_walls", "Walls along chord lines: chord force against M/d"),
+                           ("walls_across", "Walls across the load: force from chord elongation"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
             sections.append((title, _plain_rows(headers, rows)))
@@ -443,6 +478,7 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),
         section("Collectors", tab("collectors") + figs(figures["collectors"])),
         section("Chords", tab("chords") + figs(figures["chords"])),
+        section("Walls along chord lines", f"<p>{_esc(CHORD_WALLS_TEXT)}</p>" + tab("chord_walls") + tab("walls_across")),
         section("Unit shear", tab("unit_shear") + figs(figures["shear"])),
         section("Deflected shape", figs(figures["deflected"])),
         section("Equilibrium residuals", tab("residuals")),

@@ -35,6 +35,9 @@ class LineResult:
     residual: float  # N
     side_shear: np.ndarray | None = None  # (k, 3): t, delivered per length from left, from right
     has_member: bool | None = None  # semi-rigid only: whether a bar (collector/chord) lies on the line
+    # Semi-rigid only, lines with walls: the collector of each run of the line's wall pieces,
+    # (kind "declared" | "chord" | "implied" | "none", t_from m, t_to m, EA N).
+    collector_segments: tuple[tuple[str, float, float, float], ...] = ()
 
     @property
     def peak(self) -> float:
@@ -115,6 +118,12 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
         }
         if line.has_member is not None:
             lines[name]["collector_member"] = line.has_member
+        if line.collector_segments:
+            lines[name]["collector_members"] = [
+                {"kind": kind, "from": _r(units.length_out(a)), "to": _r(units.length_out(b)),
+                 "EA": _r(units.force_out(EA))}
+                for kind, a, b, EA in line.collector_segments
+            ]
         if line.side_shear is not None:
             lines[name]["delivered_shear_diagram"] = [
                 [_r(units.length_out(t)), _r(units.line_force_out(a)), _r(units.line_force_out(b))]
@@ -156,11 +165,44 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
                 zone: {"value": _r(units.line_force_out(v)), "at": [_r(units.length_out(c)) for c in at]}
                 for zone, (v, at) in value.items()
             }
+        elif key == "walls_along_chords":
+            out[key] = walls_along_chords_to_json(value, units)
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:
             out[key] = value
     return out
+
+
+def wall_piece_to_json(piece: dict, units: OutputUnits) -> dict:
+    """A wall piece (SI dict: line, from, to, walls, collector, segments) in output units."""
+    out = {"line": piece["line"], "from": _r(units.length_out(piece["from"])), "to": _r(units.length_out(piece["to"])),
+           "walls": list(piece["walls"])}
+    if "collector" in piece:
+        out["collector"] = piece["collector"]
+        out["segments"] = [{"kind": kind, "from": _r(units.length_out(a)), "to": _r(units.length_out(b)),
+                            "EA": _r(units.force_out(EA))} for kind, a, b, EA in piece["segments"]]
+    return out
+
+
+def walls_along_chords_to_json(value: dict, units: OutputUnits) -> dict:
+    """Forces that walls along chord lines take from chord elongation (see
+    postprocess/chord_restraint.py), in output units."""
+    force, length = units.force_out, units.length_out
+    return {
+        "lines": {
+            name: {"walls": list(item["walls"]), "net_force": _r(force(item["net_force"])),
+                   "restraint_force": _r(force(item["restraint_force"])), "at": _r(length(item["at"])),
+                   "self_equilibrating": {w: _r(force(f)) for w, f in item["self_equilibrating"].items()}}
+            for name, item in value["lines"].items()
+        },
+        "chords": {
+            name: {"at": _r(length(item["at"])), "M_over_d": _r(force(item["M_over_d"])),
+                   "chord_force": _r(force(item["chord_force"])), "share_lost": _r(item["share_lost"], 4),
+                   "walls_force": _r(force(item["walls_force"])), "walls_share": _r(item["walls_share"], 4)}
+            for name, item in value["chords"].items()
+        },
+    }
 
 
 def method_to_json(method: MethodResult, units: OutputUnits) -> dict:
@@ -171,6 +213,11 @@ def method_to_json(method: MethodResult, units: OutputUnits) -> dict:
     for key, value in method.extra.items():
         if key == "center_of_rigidity":
             out[key] = [_r(units.length_out(float(c))) for c in value]
+        elif key in ("wall_pieces", "wall_pieces_without_member"):
+            out[key] = [wall_piece_to_json(piece, units) for piece in value]
+        elif key == "implied_collector_EA":
+            out[key] = None if value is None else {"value": _r(units.force_out(value["value"])), "unit": units.force,
+                                                   "source": value["source"]}
         else:
             out[key] = value
     return out
@@ -250,6 +297,9 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
         for name, slots in envelope.collectors.items()
     }
     collectors = table(envelope.collectors)
+    for name, kind in envelope.collector_basis.items():
+        collectors.setdefault(name, {})["collector_in_model"] = kind
+        lines.setdefault(name, {})["collector_in_model"] = kind
     for name, text in envelope.cautions.items():
         collectors.setdefault(name, {})["caution"] = text
         lines.setdefault(name, {})["caution"] = text

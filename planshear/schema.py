@@ -59,6 +59,7 @@ PLAN_SCHEMA: dict = {
                 "openings": {"type": "array", "items": POLYGON},
                 "material": MATERIAL,
                 "chord_EA": QUANTITY,
+                "collector_EA": QUANTITY,
                 "zone": {
                     "type": "array",
                     "items": {

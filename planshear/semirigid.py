@@ -16,7 +16,8 @@ from .fem.model import torsion_bases
 from .loads import LoadCase
 from .mesh import Mesh, build_mesh
 from .plan import Plan
-from .postprocess.line_cuts import line_results_all_cases, membrane_forces
+from .postprocess.chord_restraint import walls_along_chords
+from .postprocess.line_cuts import collector_notes, line_results_all_cases, membrane_forces
 from .results import CaseResult, MethodResult
 
 __all__ = ["SemirigidRun", "semirigid_analysis"]
@@ -56,6 +57,7 @@ def semirigid_analysis(
     results = {}
     membrane = membrane_forces(solution)
     per_case = line_results_all_cases(plan, solution, membrane)
+    restraint = walls_along_chords(plan, solution, selected, [chords for _, chords, *_ in per_case])
     for j, case in enumerate(selected):
         forces = {wall_id: float(f[j]) for wall_id, f in solution.wall_forces.items()}
         total = sum(forces[w.id] * w.direction for w in plan.walls)
@@ -75,7 +77,8 @@ def semirigid_analysis(
             max_unit_shear_at=unit_shear[1],
             max_displacement=float(np.max(np.hypot(u[:, 0], u[:, 1]))),
             equilibrium_residual=max(residual, float(solution.residual[j])),
-            extra={"solver_residual": float(f"{solution.residual[j]:.3e}"), "unit_shear_by_zone": by_zone},
+            extra={"solver_residual": float(f"{solution.residual[j]:.3e}"), "unit_shear_by_zone": by_zone,
+                   "walls_along_chords": restraint[j]},
         )
     notes = [
         f"finite-element model: {len(mesh.elements)} {mesh.element_type} elements, {mesh.n_dofs} degrees of "
@@ -88,17 +91,11 @@ def semirigid_analysis(
             f"accidental torsion of load {', '.join(spread)} is spread over the diaphragm area: its weight is too "
             "concentrated to carry the moment F·e by itself (the moment added is F·e either way)"
         )
-    bare = sorted({name for lines, *_ in per_case for name, line in lines.items()
-                   if line.has_member is False and any(w.line == name for w in plan.walls)})
-    if bare:
-        notes.append(
-            "lines with walls but no collector member: " + ", ".join(bare) + "; their semi-rigid collector "
-            "force is zero because the sheathing itself drags the load to the walls. Add a collector "
-            "[[member]] on these lines to read the force a collector would carry"
-        )
+    piece_notes, piece_extra = collector_notes(plan, assembly.collectors)
+    notes += piece_notes
     extra = {"mesh": {"elements": int(len(mesh.elements)), "element_type": mesh.element_type,
                       "nodes": int(mesh.n_nodes), "dofs": int(mesh.n_dofs), "solver": solution.backend},
-             "lines_without_member": bare, "accidental_torsion_spread": bases}
+             **piece_extra, "accidental_torsion_spread": bases}
     if stiffness_factor != 1.0:
         extra["stiffness_factor"] = stiffness_factor
     return SemirigidRun(MethodResult("semirigid", results, tuple(notes), extra), mesh, solution, membrane)

@@ -10,7 +10,7 @@ by the load's collector overstrength Ω0, separately.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from planshear.loads import LoadCase
 from planshear.results import MethodResult
@@ -35,6 +35,9 @@ class Envelope:
     collectors: dict[str, dict[str, Governing | None]]  # name → {"design", "with_overstrength", "information"}
     chords: dict[str, dict[str, Governing | None]]
     cautions: dict[str, str]  # line → why its semi-rigid collector value may understate the demand
+    # line → the collector of its wall pieces in the semi-rigid model ("declared", "chord",
+    # "implied", "none" or combinations such as "declared+implied")
+    collector_basis: dict[str, str] = field(default_factory=dict)
 
 
 def _allowed(classification: Classification | None, methods: dict[str, MethodResult]) -> dict[str, tuple[str, ...]]:
@@ -93,16 +96,27 @@ def build_envelope(
                 slot["information"] = _better(slot["information"], chord.peak, assumption, case_name)
                 if design:
                     slot["design"] = _better(slot["design"], chord.peak, assumption, case_name)
-    # The semi-rigid model lists the lines that carry walls but no bar (see semirigid.py).
-    bare = {name for method in methods.values() for name in method.extra.get("lines_without_member", ())}
+    # The semi-rigid model lists its wall pieces with their collector (see fem/collectors.py);
+    # a piece with no bar at all gets a caution naming its walls.
+    bare: dict[str, list[str]] = {}
+    basis: dict[str, list[str]] = {}
+    for method in methods.values():
+        for piece in method.extra.get("wall_pieces_without_member", ()):
+            ids = bare.setdefault(piece["line"], [])
+            ids += [w for w in piece["walls"] if w not in ids]
+        for piece in method.extra.get("wall_pieces", ()):
+            kinds = basis.setdefault(piece["line"], [])
+            kinds += [k for k in piece["collector"].split("+") if k not in kinds]
     cautions = {
-        name: "walls on this line but no collector or chord member in the model: the semi-rigid collector "
-        "force is the bar force only (here none), the sheathing drags the load to the walls; add a [[member]] "
-        'with role = "collector" on this line to read the force a collector would carry, and see the '
+        name: f"walls {', '.join(ids)} on this line have no collector or chord bar in the model (no member, and "
+        "neither [diaphragm] collector_EA nor chord_EA to imply one): the semi-rigid collector force there is the "
+        "bar force only (here none), the sheathing drags the load to the walls; give [diaphragm] collector_EA or a "
+        '[[member]] with role = "collector" on this line to read the force a collector would carry, and see the '
         "idealized results"
-        for name in sorted(bare)
+        for name, ids in sorted(bare.items())
     }
-    return Envelope(allowed, walls, reactions, collectors, chords, cautions)
+    collector_basis = {name: "+".join(kinds) for name, kinds in sorted(basis.items())}
+    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis)
 
 
 def compare_walls(methods: dict[str, MethodResult]) -> dict[str, dict[str, dict[str, float | None]]]:

@@ -11,10 +11,25 @@ equilibrium between
 * bars and springs that belong to other lines but share the node (crossing members),
 * the bars lying on this line (collector or chord).
 
-The collector diagram is the bar force N(t) (tension positive) plus the membrane force
-along the line within the member's effective strip width. The running sum of everything
-but the bars on the line, node by node from the start, must equal −N at every element
-boundary and zero at the far end; the largest difference is the reported residual.
+The collector diagram is the bar's axial force N(t) = EA·ε (tension positive) at both
+ends of every bar element, ε being the derivative of the bar's quadratic (or linear)
+displacement, plus the membrane force along the line within the member's effective
+strip width. Diagrams are [[t, N], …] with t increasing; at a node shared by two
+elements both values are kept (end of the element before, then start of the one after).
+
+The element's end nodal forces are not its axial force: a 3-node bar that picks up a
+uniform shear flow has a linear N(s), and its start nodal force is −(N_start + ΔN/6)
+(ΔN = N_end − N_start), so nodal forces give a sawtooth with jumps of ΔN/3 between
+elements, a free end that seems to carry ΔN/6, and peaks read slightly low.
+
+The residual is the equilibrium check of the cut, made on nodal forces because only they
+are in exact equilibrium at the nodes: the running sum of everything but the bars on the
+line, node by node from the start, must equal minus the start nodal force of the bar
+element that begins at that node (at every element boundary) and zero at the far end;
+the largest difference is the reported residual. It checks the solve and the book-keeping
+of the cut (walls, crossing members, loads, both sides); EA·ε differs from those nodal
+forces by the ΔN/6 above, which is the shear flow picked up by the element's own half
+rather than an error, so the residual does not (and cannot) measure it.
 
 Per-unit-length values divide each nodal force by the node's tributary length for a
 uniform distribution on the line's edges (L/6 at ends and 2L/3 at the mid node of a
@@ -28,12 +43,14 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse as sp
 
-from planshear.fem.elements import _geometry, membrane_strain_matrix
+from planshear.fem.collectors import CollectorLayout, WallPiece
+from planshear.fem.elements import _geometry, bar_axial_force, membrane_strain_matrix
 from planshear.fem.model import Solution, element_dofs
 from planshear.plan import GridLine, Plan
 from planshear.results import ChordResult, LineResult
+from planshear.units import OutputUnits
 
-__all__ = ["LineCut", "cut_line", "line_results_all_cases", "membrane_forces", "outline_edge_chords"]
+__all__ = ["LineCut", "collector_notes", "cut_line", "line_results_all_cases", "membrane_forces", "outline_edge_chords"]
 
 
 @dataclass(frozen=True, eq=False)
@@ -117,20 +134,24 @@ def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.
         f = np.einsum("mij,mjc->mic", matrices, solution.displacements[element_dofs(edges)])
         return f.reshape(len(edges), -1, 2, n_cases)
 
-    # Bars lying on the line: sum the bars that share an edge (e.g. chord and collector).
-    on_line_edges: dict[tuple[int, int], np.ndarray] = {}
+    # Bars lying on the line (bars sharing an edge, e.g. chord and collector, add up):
+    # their nodal forces for the equilibrium check, their axial force EA·ε for the diagram.
+    keys, nodal_parts, axial_parts = [], [], []
     other = np.zeros((k, n_cases))
+    ends = np.array([-1.0, 1.0])
     for bar in assembly.bars:
-        f = edge_forces(bar.edges, bar.matrices)
+        f_e = np.einsum("mndc,d->mnc", edge_forces(bar.edges, bar.matrices), e)
         pos = position[bar.edges]
         mine = np.all(pos >= 0, axis=1)
-        f_e = np.einsum("mndc,d->mnc", f, e)
-        for row in np.flatnonzero(mine):
-            a, b = int(pos[row, 0]), int(pos[row, 1])
-            key = (min(a, b), max(a, b))
-            # Nodal forces in line order: start node first, then end node.
-            pair = f_e[row, [0, 1]] if a < b else f_e[row, [1, 0]]
-            on_line_edges[key] = on_line_edges.get(key, 0.0) + pair
+        if np.any(mine):
+            a, b = pos[mine, 0], pos[mine, 1]
+            forward = (a < b)[:, None, None]
+            axial = bar_axial_force(mesh.nodes[bar.edges[mine]], np.full(int(mine.sum()), bar.EA),
+                                    solution.displacements[element_dofs(bar.edges[mine])], ends)
+            # Both in line order: the end of smaller t first.
+            axial_parts.append(np.where(forward, axial, axial[:, ::-1]))
+            nodal_parts.append(np.where(forward, f_e[mine][:, [0, 1]], f_e[mine][:, [1, 0]]))
+            keys.append(np.minimum(a, b) * k + np.maximum(a, b))
         touching = ~mine & np.any(pos >= 0, axis=1)
         if np.any(touching):
             p = pos[touching]
@@ -155,15 +176,19 @@ def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.
     nonbar = from_left + from_right + applied - wall
     running_nodes = -np.cumsum(nonbar, axis=0)
 
-    if on_line_edges:
-        keys = sorted(on_line_edges)
-        pairs = np.array([on_line_edges[key] for key in keys])  # (m, 2, c)
-        # Axial force at the ends of a bar: N = −(start nodal force) = +(end nodal force).
-        stations = np.array([[t[a], t[b]] for a, b in keys]).ravel()
-        values = np.stack([-pairs[:, 0], pairs[:, 1]], axis=1).reshape(-1, n_cases)
-        start_nodes = np.array([a for a, _ in keys])
+    if keys:
+        edge_keys, inverse = np.unique(np.concatenate(keys), return_inverse=True)
+        nodal = np.zeros((len(edge_keys), 2, n_cases))
+        axial = np.zeros((len(edge_keys), 2, n_cases))
+        np.add.at(nodal, inverse, np.concatenate(nodal_parts))
+        np.add.at(axial, inverse, np.concatenate(axial_parts))
+        start_nodes, end_nodes = edge_keys // k, edge_keys % k
+        stations = np.column_stack([t[start_nodes], t[end_nodes]]).ravel()
+        values = axial.reshape(-1, n_cases)
         running = np.repeat(running_nodes[start_nodes], 2, axis=0)
-        residual_nodes = np.abs(running_nodes[start_nodes] - values[0::2]).max(axis=0)
+        # Equilibrium of the cut, node by node: the running sum through an element's start
+        # node equals minus that element's start nodal force (not its EA·ε; see above).
+        residual_nodes = np.abs(running_nodes[start_nodes] + nodal[:, 0]).max(axis=0)
     else:
         stations = np.array([t[0], t[-1]])
         values = np.zeros((2, n_cases))
@@ -176,7 +201,7 @@ def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.
     if width > 0 and membrane is not None:
         strip = _strip_force(mesh, membrane, e, width, centroids, grid_line, stations)
     return LineCut(grid_line.name, t, tributary, from_left, from_right, applied, wall, stations,
-                   values, strip, running, residual, bool(on_line_edges))
+                   values, strip, running, residual, bool(keys))
 
 
 def _strip_force(mesh, membrane, e, width, centroids, grid_line, stations) -> np.ndarray:
@@ -228,8 +253,8 @@ def outline_edge_chords(plan: Plan, solution: Solution) -> dict[str, tuple[np.nd
     mesh = assembly.mesh
     n_cases = solution.displacements.shape[1]
     xy = mesh.nodes[bar.edges]
-    f = np.einsum("mij,mjc->mic", bar.matrices, solution.displacements[element_dofs(bar.edges)])
-    f = f.reshape(len(bar.edges), -1, 2, n_cases)
+    axial = bar_axial_force(xy, np.full(len(bar.edges), bar.EA),
+                            solution.displacements[element_dofs(bar.edges)], np.array([-1.0, 1.0]))
     outline = plan.outline
     for i in range(len(outline)):
         a, b = outline[i], outline[(i + 1) % len(outline)]
@@ -241,16 +266,14 @@ def outline_edge_chords(plan: Plan, solution: Solution) -> dict[str, tuple[np.nd
         on = np.all(across <= 1e-7 * length, axis=1) & np.all((along >= -1e-7 * length) & (along <= length * (1 + 1e-7)), axis=1)
         if not np.any(on):
             continue
-        f_e = np.einsum("mndc,d->mnc", f[on], e)
         ta, tb = along[on][:, 0], along[on][:, 1]
-        forward = ta < tb
-        start = np.where(forward[:, None], -f_e[:, 0], -f_e[:, 1])
-        end = np.where(forward[:, None], f_e[:, 1], f_e[:, 0])
+        # Each element's pair in increasing t, elements in increasing t: at a shared node
+        # the end of the element before comes first, then the start of the one after.
+        pairs = np.where((ta < tb)[:, None, None], axial[on], axial[on][:, ::-1])
         t0, t1 = np.minimum(ta, tb), np.maximum(ta, tb)
-        stations = np.concatenate([t0, t1])
-        values = np.concatenate([start, end])
-        order = np.argsort(stations, kind="stable")
-        result[f"edge {i + 1}"] = (stations[order], values[order])
+        order = np.argsort(t0, kind="stable")
+        stations = np.column_stack([t0, t1])[order].ravel()
+        result[f"edge {i + 1}"] = (stations, pairs[order].reshape(-1, n_cases))
     return result
 
 
@@ -265,6 +288,12 @@ def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray)
     incidence = _incidence(mesh)
     cuts = {g.name: cut_line(plan, solution, g, incidence, centroids, membrane) for g in plan.grid_lines}
     chords = outline_edge_chords(plan, solution)
+    layout = solution.assembly.collectors
+    segments = {}
+    if layout is not None:
+        for piece in layout.pieces:
+            segments.setdefault(piece.line, ())
+            segments[piece.line] += tuple((s.kind, s.t_from, s.t_to, s.EA) for s in piece.segments)
     per_case = []
     for j in range(solution.displacements.shape[1]):
         lines = {}
@@ -284,6 +313,7 @@ def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray)
                 residual=float(cut.residual[j]),
                 side_shear=np.column_stack([cut.t, q_left, q_right]),
                 has_member=cut.has_bar,
+                collector_segments=segments.get(name, ()),
             )
         chord_results = {name: ChordResult(name, st, val[:, j]) for name, (st, val) in chords.items()}
         for member in plan.members:
@@ -303,3 +333,50 @@ def line_results_all_cases(plan: Plan, solution: Solution, membrane: np.ndarray)
             by_zone[name] = (float(shear[best]), centroids[best])
         per_case.append((lines, chord_results, (float(shear[k]), centroids[k]), by_zone))
     return per_case
+
+
+def collector_notes(plan: Plan, layout: CollectorLayout | None) -> tuple[list[str], dict]:
+    """Notes and result entries on the collector of every wall piece (SI): which pieces
+    carry a declared member, the outline chord, an implied collector (and its assumed EA)
+    or nothing. Returns (notes, extra) with extra keys ``wall_pieces``,
+    ``wall_pieces_without_member`` (read by the envelope's caution) and
+    ``implied_collector_EA``."""
+    if layout is None:
+        return [], {}
+    units = OutputUnits.for_plan(plan.length_unit)
+
+    def where(piece: WallPiece) -> str:
+        a, b = units.length_out(piece.t_from), units.length_out(piece.t_to)
+        return f"{piece.line} ({a:.4g}–{b:.4g} {units.length}, walls {', '.join(piece.walls)})"
+
+    pieces = [{"line": p.line, "from": p.t_from, "to": p.t_to, "walls": p.walls, "collector": p.kind,
+               "segments": [(s.kind, s.t_from, s.t_to, s.EA) for s in p.segments]} for p in layout.pieces]
+    bare = [p for p in layout.pieces if any(s.kind == "none" for s in p.segments)]
+    implied = [p for p in layout.pieces if any(s.kind == "implied" for s in p.segments)]
+    chord = [p for p in layout.pieces if any(s.kind == "chord" for s in p.segments)]
+    notes = []
+    if implied:
+        source = ("[diaphragm] collector_EA" if layout.EA_source == "collector_EA"
+                  else "chord_EA, the default of [diaphragm] collector_EA")
+        notes.append(
+            "implied collectors on the wall pieces of lines " + "; ".join(where(p) for p in implied)
+            + f": no declared member covers them, so the model gives each the collector a drag strut would be, "
+            f"a bar of EA = {units.force_out(layout.EA):.6g} {units.force} (from {source}) over the whole piece; "
+            "their semi-rigid collector forces depend on this assumed EA"
+        )
+    if chord:
+        notes.append("the outline chord bar is read as the collector of the wall pieces of lines "
+                     + "; ".join(where(p) for p in chord))
+    if bare:
+        notes.append(
+            "wall pieces without a collector: " + "; ".join(where(p) for p in bare)
+            + ": no declared member and neither [diaphragm] collector_EA nor chord_EA to imply one, so their "
+            "semi-rigid collector force is zero (the sheathing itself drags the load to the walls). Give "
+            "[diaphragm] collector_EA or a collector [[member]] to read the force a collector would carry"
+        )
+    extra = {
+        "wall_pieces": pieces,
+        "wall_pieces_without_member": [{"line": p.line, "from": p.t_from, "to": p.t_to, "walls": p.walls} for p in bare],
+        "implied_collector_EA": None if layout.EA is None else {"value": layout.EA, "source": layout.EA_source},
+    }
+    return notes, extra

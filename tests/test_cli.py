@@ -29,6 +29,9 @@ def test_demo_writes_results_per_contract(tmp_path, capsys):
             for line in case["lines"].values():
                 assert {"reaction", "collector_peak", "collector_peak_at", "collector"} <= set(line)
     assert "E+x+ecc" in doc["assumptions"]["rigid"]["cases"]
+    semi = doc["assumptions"]["semirigid"]
+    assert "walls along chord lines" in text and {"wall_pieces", "implied_collector_EA"} <= set(semi)
+    assert all("walls_along_chords" in case for case in semi["cases"].values())
     assert "E+x+ecc" not in doc["assumptions"]["flexible"]["cases"]
     assert doc["unavailable"] == {}
     for name in ("mesh.vtu", "mesh.xdmf", "mesh.msh"):
