@@ -35,6 +35,7 @@ class LineResult:
     residual: float  # N
     side_shear: np.ndarray | None = None  # (k, 3): t, delivered per length from left, from right
     has_member: bool | None = None  # semi-rigid only: whether a bar (collector/chord) lies on the line
+    pieces: np.ndarray | None = None  # idealized: (k, 5) t_start, t_end, peak, peak_at, residual per piece (m, N)
 
     @property
     def peak(self) -> float:
@@ -115,6 +116,12 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
         }
         if line.has_member is not None:
             lines[name]["collector_member"] = line.has_member
+        if line.pieces is not None:
+            lines[name]["pieces"] = [
+                {"from": _r(units.length_out(t0)), "to": _r(units.length_out(t1)), "peak": _r(units.force_out(pk)),
+                 "peak_at": _r(units.length_out(at)), "residual": _r(units.force_out(res))}
+                for t0, t1, pk, at, res in line.pieces
+            ]
         if line.side_shear is not None:
             lines[name]["delivered_shear_diagram"] = [
                 [_r(units.length_out(t)), _r(units.line_force_out(a)), _r(units.line_force_out(b))]
