@@ -18,6 +18,7 @@ from .postprocess.beam_analogy import (
     edge_chords,
     load_along_span,
 )
+from .postprocess.transfer import transfer_diaphragms
 from .results import CaseResult, ChordResult, LineResult, MethodResult
 
 #: Force left at the end of a line piece, relative to the case's force, above which a
@@ -54,9 +55,17 @@ def _case_from_analogy(
     max_displacement: float,
     residual: float,
     extra: dict | None = None,
+    field_=None,
+    reactions: list[WallReaction] | None = None,
 ) -> CaseResult:
+    """Collect one case's beam-analogy results; the transfer diaphragms at chord
+    interruptions are formed from the main analogy (``field_`` and ``reactions`` given)."""
     lines = {}
     notes: list[str] = []
+    transfers = []
+    if reactions is not None and main.chord is not None:
+        transfers, transfer_notes = transfer_diaphragms(plan, main, field_, reactions)
+        notes += transfer_notes
     for analogy in (main, transverse):
         if analogy is None:
             continue
@@ -99,7 +108,7 @@ def _case_from_analogy(
         max_unit_shear_at=max_at,
         max_displacement=max_displacement,
         equilibrium_residual=max(residual, collector_residual / case.force),
-        extra={**(extra or {}), **({"notes": notes} if notes else {})},
+        extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {})},
     )
 
 
@@ -161,6 +170,7 @@ def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         results[case.name] = _case_from_analogy(
             plan, case, forces, main, None, max(drifts), residual,
             {"line_forces": {name: float(f) for (name, _, _), f in zip(supports, line_force, strict=True)}},
+            case.field, reactions,
         )
     return MethodResult("flexible", results, tuple(notes + [
         "max_displacement is the largest drift of a line of resistance; the flexible idealization "
@@ -246,7 +256,8 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
             "rigid_body_motion": {"u": float(u), "v": float(v), "rotation": float(theta)},
             "torsional_ratio": round(ratio, 4),
         }
-        results[case.name] = _case_from_analogy(plan, case, forces, main, transverse, max_disp, residual, extra)
+        results[case.name] = _case_from_analogy(plan, case, forces, main, transverse, max_disp, residual, extra,
+                                                case.field, reactions)
     return MethodResult(
         "rigid",
         results,

@@ -15,6 +15,7 @@ __all__ = [
     "CaseResult",
     "MethodResult",
     "method_to_json",
+    "transfer_to_json",
     "classification_to_json",
     "envelope_to_json",
     "comparison_to_json",
@@ -163,11 +164,48 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
                 zone: {"value": _r(units.line_force_out(v)), "at": [_r(units.length_out(c)) for c in at]}
                 for zone, (v, at) in value.items()
             }
+        elif key == "transfer":
+            out[key] = [transfer_to_json(td, units) for td in value]
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:
             out[key] = value
     return out
+
+
+def transfer_to_json(td, units: OutputUnits) -> dict:
+    """One transfer diaphragm (see planshear.postprocess.transfer) in output units."""
+    length, force, shear = units.length_out, units.force_out, units.line_force_out
+
+    def diagram(stations, values):
+        return [[_r(length(a)), _r(force(b))] for a, b in zip(stations, values, strict=True)]
+
+    return {
+        "name": td.name,
+        "load_axis": td.axis,
+        "at_line": td.at_line,
+        "far_line": td.far_line,
+        "region": {"along_span": [_r(length(v)) for v in td.s_range], "across": [_r(length(v)) for v in td.t_range]},
+        "chord_forces": [{"line": line, "at": _r(length(t)), "force": _r(force(f))} for line, t, f in td.chord_forces],
+        "reactions": [_r(force(r)) for r in td.reactions],
+        "transfer_shears": [{"from": _r(length(a)), "to": _r(length(b)), "shear": _r(shear(v))} for a, b, v in td.shears],
+        "net_shears": [
+            {"line": n.line, "side": n.side, "from": _r(length(n.t_start)), "to": _r(length(n.t_end)),
+             "main": _r(shear(n.main)), "transfer": _r(shear(n.transfer)), "net": _r(shear(n.net))}
+            for n in td.net
+        ],
+        "struts": [
+            {"role": s.role, "line": s.line, "at": _r(length(s.t)),
+             "peak": _r(force(s.total[np.argmax(np.abs(s.total))])) if len(s.total) else 0.0,
+             "added": diagram(s.stations, s.added), "diagram": diagram(s.stations, s.total)}
+            for s in td.struts
+        ],
+        "collectors": {
+            name: {"collector_peak": _r(force(d.peak)), "collector_peak_at": _r(length(d.peak_position)),
+                   "collector": diagram(d.stations, d.force), "residual": _r(force(d.residual))}
+            for name, d in td.collectors.items()
+        },
+    }
 
 
 def method_to_json(method: MethodResult, units: OutputUnits) -> dict:

@@ -137,6 +137,7 @@ class BeamAnalogy:
     closure_shear: float  # V at the far end (N), zero in equilibrium
     closure_moment: float  # M at the far end (N·m)
     notes: list[str] = field(default_factory=list)
+    along: SpanLoad | None = None  # forces along the load per unit span: applied + wall reactions
 
 
 def _axes(axis: str) -> tuple[int, int]:
@@ -308,6 +309,7 @@ def beam_analogy(
         max_unit_shear_at=at,
         closure_shear=float(-f_end[0]),
         closure_moment=closure_moment,
+        along=along,
     )
 
 
