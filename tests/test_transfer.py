@@ -131,3 +131,36 @@ def test_no_grid_line_along_the_offset_chord_is_said(plan_from):
 def test_bad_transfer_entries_are_refused(plan_from, entry, message):
     with pytest.raises(PlanError, match=message):
         plan_from(EXAMPLE_4_1 + f"\n[[transfer]]\n{entry}\n")
+
+
+def test_transfer_in_results_json_and_tables(plan_from):
+    """results.json carries the transfer block per case in output units (kip, ft, kip/ft)
+    and the report tables are built from it: the published TD1 values come through
+    (Malone & Rice 2012, Ex. 4.1: 5062.5 lb, 1012.5 / 4050 lb, +367.5 plf)."""
+    from planshear.idealized import flexible_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.report import transfer_tables
+    from planshear.results import method_to_json
+    from planshear.units import OutputUnits
+
+    plan = plan_from(EXAMPLE_4_1)
+    units = OutputUnits.for_plan("ft")
+    method = method_to_json(flexible_analysis(plan, expand_load_cases(plan)), units)
+    doc = {"units": {"force": units.force, "position": units.length, "displacement": units.displacement,
+                     "unit_shear": units.line_force}, "assumptions": {"flexible": method}}
+    td = method["cases"]["W+y"]["transfer"][0]
+    assert td["name"] == "TD 2-1" and td["far_line"] == "1"
+    assert td["chord_forces"][0]["force"] == pytest.approx(5.0625, rel=1e-6)
+    assert [abs(r) for r in td["reactions"]] == pytest.approx([1.0125, 4.05], rel=1e-6)
+    assert {"line": "1", "side": "right", "from": 0.0, "to": 40.0}.items() <= td["net_shears"][0].items()
+    assert td["net_shears"][0]["net"] == pytest.approx(0.3675, rel=1e-6)
+    assert {"added", "diagram", "peak", "role", "line", "at"} <= set(td["struts"][0])
+    assert set(td["collectors"]) == {"1", "2"}
+    line2 = method["cases"]["W+y"]["lines"]["2"]
+    assert line2["unit_shear_left"] == pytest.approx(-0.24) and line2["unit_shear_right"] == pytest.approx(0.3)
+    assert len(line2["pieces"]) == 1 and line2["pieces"][0]["to"] == pytest.approx(50.0)
+    tables = transfer_tables(doc)
+    headers, rows = tables["transfer"]
+    assert len(rows) == 4 and rows[0][2] == "TD 2-1"  # W+y and W−y, two regions each
+    headers, rows = tables["net_shears"]
+    assert rows[0][3:] == ["1", "right", 0.0, 40.0, 0.3, 0.0675, pytest.approx(0.3675)]
