@@ -52,7 +52,7 @@ from .beam_analogy import (
     side_intervals,
 )
 
-__all__ = ["Strut", "NetShear", "TransferDiaphragm", "transfer_diaphragms"]
+__all__ = ["Strut", "NetShear", "TransferDiaphragm", "transfer_diaphragms", "transfer_peaks"]
 
 #: Offset chord forces below this fraction of the largest section shear (N per N) are
 #: round-off: no transfer diaphragm is formed for them.
@@ -287,3 +287,23 @@ def _present_range(plan: Plan, g: GridLine, s_index: int, side: str, size: float
     """Extent (t0, t1) of the diaphragm just beside line ``g`` on ``side`` (m)."""
     parts = side_intervals(plan, g, s_index, (-1e-7 if side == "left" else 1e-7) * size)
     return (parts[0][0], parts[-1][1]) if parts else (0.0, 0.0)
+
+
+def transfer_peaks(extra: dict) -> tuple[list[tuple[str, float]], list[tuple[str, float]]]:
+    """Peaks (N) of one case's transfer regions for the envelope, from the case's
+    ``extra``: collectors (the lines at a region's ends with the transfer shear, and the
+    collector extending each offset chord) and chords (the supports, with their added force)."""
+    collectors, chords = [], []
+    for td in extra.get("transfer", ()):
+        for line, d in td.collectors.items():
+            collectors.append((f"{line} with {td.name}", d.peak))
+        for strut in td.struts:
+            if not len(strut.total):
+                continue
+            peak = float(strut.total[np.argmax(np.abs(strut.total))])
+            where = strut.line or f"{strut.t:.6g} m"
+            if strut.role == "offset chord":
+                collectors.append((f"{td.name} collector on {where}", peak))
+            else:
+                chords.append((f"{td.name} chord on {where}", peak))
+    return collectors, chords

@@ -164,3 +164,21 @@ def test_transfer_in_results_json_and_tables(plan_from):
     assert len(rows) == 4 and rows[0][2] == "TD 2-1"  # W+y and W−y, two regions each
     headers, rows = tables["net_shears"]
     assert rows[0][3:] == ["1", "right", 0.0, 40.0, 0.3, 0.0675, pytest.approx(0.3675)]
+
+
+def test_transfer_forces_join_the_envelope(plan_from):
+    """The collectors and chords of the transfer regions are design forces of the
+    transfer-diaphragm method: the envelope carries them (line 1's transverse collector
+    peaks at 2700 lb, statics of Malone & Rice 2012 Ex. 4.1's TD1; the offset chord
+    collector at 5062.5 lb, the published disrupted chord force)."""
+    from planshear.idealized import flexible_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.postprocess.envelope import build_envelope
+
+    plan = plan_from(EXAMPLE_4_1)
+    cases = expand_load_cases(plan)
+    envelope = build_envelope({"flexible": flexible_analysis(plan, cases)}, cases, None)
+    assert abs(envelope.collectors["1 with TD 2-1"]["design"].value) / LB == pytest.approx(2700.0, rel=1e-9)
+    assert abs(envelope.collectors["TD 2-1 collector on B"]["design"].value) / LB == pytest.approx(5062.5, rel=1e-9)
+    assert "TD 3-4 chord on C" in envelope.chords
+    assert envelope.line_reactions["1 with TD 2-1"]["design"] is None
