@@ -41,7 +41,12 @@ METHODS_TEXT = [
     ("Rigid", "Three rigid-body degrees of freedom from the stiffness of every wall; center of rigidity from "
      "the rigid-body flexibility; wall force = stiffness × displacement along the wall."),
     ("Beam analogy", "Shear and moment along the span from loads and wall forces; unit shear = V / length of "
-     "diaphragm present; collector force = running sum of delivered shear minus wall reaction; chord force = M / depth."),
+     "diaphragm present; on a grid line each side delivers its shear over the length present on that side; lines "
+     "are split at gaps (openings, outside the outline) and nothing is carried across a gap; collector force = "
+     "running sum of delivered shear minus wall reaction per piece; chord force = M / depth."),
+    ("Transfer diaphragms", "At a notch or offset the offset chord force M / reduced depth is carried by a collector "
+     "into a transfer region of the full-depth diaphragm spanning across the load between its chords (Malone & Rice "
+     "2012, ch. 3–4); transfer shear = its beam shear / region length, added to the main shear (net shear)."),
     ("Semi-rigid", "Plane-stress membrane (quadratic triangles by default) with per-unit-width rigidities: wood "
      "panels G·t = Ga (SDPWS), steel deck G·t = G′ (AISI S310), concrete E·t with a cracked-section factor; "
      "walls as springs along the wall only, total equal to the wall stiffness; chords and collectors as bars; "

@@ -122,22 +122,31 @@ def _interruptions(plan: Plan, analogy: BeamAnalogy, size: float) -> list[_Break
     eps = 1e-7 * size
     tol = 1e-6 * size
     outline = shapely.Polygon(plan.outline)
+
+    def steps(near: np.ndarray, far: np.ndarray) -> bool:
+        jump = near[0] - near[1]
+        return abs(jump) > tol and abs((far[0] - far[1]) - jump) < 0.5 * abs(jump)
+
     found = []
     for g in plan.grid_lines:
         if g.parallel_to != axis:
             continue
         s_k = float(g.origin[s_index])
+        # Extents just beside the line, and 100 times farther: a step (an outline edge on
+        # the line) differs the same at both, a sloped edge crossing the line 100 times more.
         _, lo, hi = sections(plan, outline, s_index, np.array([s_k - eps, s_k + eps]))
+        _, lo_far, hi_far = sections(plan, outline, s_index, np.array([s_k - 100 * eps, s_k + 100 * eps]))
         depth = hi - lo
+
         if np.any(depth <= tol):
             continue  # the line is at the plan's end: nothing beyond to transfer into
         moment = float(np.interp(s_k, analogy.stations, analogy.moment))
-        if abs(hi[0] - hi[1]) > tol:  # the top chord (+t face) steps
+        if steps(hi, hi_far):  # the top chord (+t face) steps
             full = 0 if hi[0] > hi[1] else 1
             reduced = 1 - full
             found.append(_Break(g, -1 if full == 0 else 1, float(hi[reduced]), moment / depth[reduced],
                                 float(lo[full]), float(hi[full])))
-        if abs(lo[0] - lo[1]) > tol:  # the bottom chord (−t face) steps
+        if steps(lo, lo_far):  # the bottom chord (−t face) steps
             full = 0 if lo[0] < lo[1] else 1
             reduced = 1 - full
             found.append(_Break(g, -1 if full == 0 else 1, float(lo[reduced]), -moment / depth[reduced],

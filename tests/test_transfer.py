@@ -182,3 +182,37 @@ def test_transfer_forces_join_the_envelope(plan_from):
     assert abs(envelope.collectors["TD 2-1 collector on B"]["design"].value) / LB == pytest.approx(5062.5, rel=1e-9)
     assert "TD 3-4 chord on C" in envelope.chords
     assert envelope.line_reactions["1 with TD 2-1"]["design"] is None
+
+
+def test_narrowing_on_both_faces_loads_one_region_twice(plan_from):
+    """5-ft notches in both long faces between lines 2 and 3 (reduced depth 40 ft, the
+    same M/40 = 5062.5 lb at line 2 as in Malone & Rice 2012 Ex. 4.1): one transfer region
+    takes both offset chords, tension at y = 45 and compression at y = 5. Statics of the
+    simple beam across 50 ft: transfer shears −270, +67.5, −270 plf, so the net shear on
+    line 1 is 30, 367.5 and 30 plf, which still sums to the 15,000 lb reaction."""
+    text = EXAMPLE_4_1.replace(
+        "[[0, 0], [150, 0], [150, 50], [35, 50], [35, 40], [15, 40], [15, 50], [0, 50]]",
+        "[[0, 0], [15, 0], [15, 5], [35, 5], [35, 0], [150, 0], [150, 50], [35, 50], [35, 45], [15, 45], [15, 50], [0, 50]]",
+    ).replace('y = { "A" = 0, "B" = 40, "C" = 50 }', 'y = { "A" = 0, "A1" = 5, "B" = 45, "C" = 50 }')
+    text = text.replace('line = "A"\nfrom = 0\nto = 150', 'line = "A1"\nfrom = 0\nto = 150')
+    plan = plan_from(text)
+    td = _transfers(_case(plan, "flexible"))["TD 2-1"]
+    assert [line for line, _, _ in td.chord_forces] == ["A1", "B"]
+    assert [f / LB for _, _, f in td.chord_forces] == pytest.approx([-5062.5, 5062.5], rel=1e-9)
+    net = _net(td, "1", "right")
+    np.testing.assert_allclose(net, [(0, 5, 30.0), (5, 45, 367.5), (45, 50, 30.0)], rtol=1e-9, atol=1e-9)
+    assert sum((b - a) * v for a, b, v in net) == pytest.approx(15000.0, rel=1e-12)
+
+
+def test_sloped_edge_is_not_an_interruption(plan_from):
+    """A steep sloped outline edge crossing grid line 3 changes the depth gradually (the
+    extent differs by slope × offset on the two sides of the line): there is no chord
+    interruption there, so no transfer region (common practice: the chord follows the
+    sloped edge)."""
+    text = EXAMPLE_4_1.replace(
+        "[[0, 0], [150, 0], [150, 50], [35, 50], [35, 40], [15, 40], [15, 50], [0, 50]]",
+        "[[0, 0], [150, 0], [150, 40], [35.5, 40], [34.5, 50], [0, 50]]",
+    ).replace('line = "5"\nfrom = 0\nto = 50', 'line = "5"\nfrom = 0\nto = 40')
+    case = _case(plan_from(text), "flexible")
+    assert "transfer" not in case.extra
+    assert not any("chord" in note for note in case.extra.get("notes", []))
