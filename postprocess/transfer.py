@@ -177,6 +177,7 @@ def transfer_diaphragms(
     for b in _interruptions(plan, analogy, size):
         if abs(b.force) > negligible:
             groups.setdefault((b.line.name, b.full_side), []).append(b)
+    used: set[str] = set()
     results = []
     for (at_name, side), breaks in groups.items():
         at = breaks[0].line
@@ -186,6 +187,7 @@ def transfer_diaphragms(
         if spec is not None:
             far = plan.line(spec.to)
             name = spec.name
+            used.add(spec.name)
         else:
             beyond = [g for g in parallel if (g.origin[s_index] - s_k) * side > tol]
             if not beyond:
@@ -225,6 +227,10 @@ def transfer_diaphragms(
             continue
         results.append(_one_region(plan, analogy, field_, reactions, name, at, far, t_lo, t_hi,
                                    length, depth, chords, across, size))
+    for spec in plan.transfers:
+        if spec.name not in used and plan.line(spec.at).parallel_to == axis:
+            notes.append(f"[[transfer]] {spec.name} (load along {axis}): no chord force to transfer at line {spec.at} "
+                         f"with the region on the side of line {spec.to} (no notch or offset there, or M = 0 at the line)")
     return results, notes
 
 

@@ -216,3 +216,10 @@ def test_sloped_edge_is_not_an_interruption(plan_from):
     case = _case(plan_from(text), "flexible")
     assert "transfer" not in case.extra
     assert not any("chord" in note for note in case.extra.get("notes", []))
+
+
+def test_unused_transfer_entry_is_said(plan_from):
+    """A [[transfer]] entry at a line without a notch or offset is not silently ignored."""
+    case = _case(plan_from(EXAMPLE_4_1 + '\n[[transfer]]\nat = "4"\nto = "5"\n'), "flexible")
+    assert any("[[transfer]] TD 4-5" in note and "no chord force" in note for note in case.extra["notes"])
+    assert set(_transfers(case)) == {"TD 2-1", "TD 3-4"}
