@@ -213,7 +213,7 @@ def transfer_tables(doc: dict, cases: set[str] | None = None) -> dict[str, tuple
                     "; ".join(f"{c['line']}: {_plain(c['force'])}" for c in td["chord_forces"]),
                     ", ".join(_plain(r) for r in td["reactions"]),
                     "; ".join(f"{_plain(t['from'])}-{_plain(t['to'])}: {_plain(t['shear'])}" for t in td["transfer_shears"]),
-                    "; ".join(f"{st['role']} {st['line'] or _plain(st['at'])}: {_plain(st['peak'])}" for st in td["struts"]),
+                    "; ".join(f"{st['role']} {st['label']}: {_plain(st['peak'])}" for st in td["struts"]),
                     "; ".join(f"{n}: {_plain(c['collector_peak'])}" for n, c in td["collectors"].items()),
                 ])
                 net += [[m, case_name, td["name"], n["line"], n["side"], n["from"], n["to"], n["main"], n["transfer"],

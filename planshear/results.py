@@ -195,7 +195,7 @@ def transfer_to_json(td, units: OutputUnits) -> dict:
             for n in td.net
         ],
         "struts": [
-            {"role": s.role, "line": s.line, "at": _r(length(s.t)),
+            {"role": s.role, "line": s.line, "label": s.label, "at": _r(length(s.t)),
              "peak": _r(force(s.total[np.argmax(np.abs(s.total))])) if len(s.total) else 0.0,
              "added": diagram(s.stations, s.added), "diagram": diagram(s.stations, s.total)}
             for s in td.struts

@@ -65,6 +65,7 @@ class Strut:
 
     role: str  # "offset chord" (the collector extending it) or "support" (a chord the region spans to)
     line: str | None  # grid line it lies on (None when no grid line is there)
+    label: str  # the grid line's name, else its position in the plan's unit
     t: float  # m, position across the span
     stations: np.ndarray  # s, m
     added: np.ndarray  # N, the transfer diaphragm's share
@@ -234,7 +235,24 @@ def transfer_diaphragms(
     return results, notes
 
 
-def _one_region(plan, analogy, field_, reactions, name, at, far, t_lo, t_hi, length, depth, chords, across, size):
+def _one_region(
+    plan: Plan,
+    analogy: BeamAnalogy,
+    field_: ForceField | None,
+    reactions: list[WallReaction],
+    name: str,
+    at: GridLine,
+    far: GridLine,
+    t_lo: float,
+    t_hi: float,
+    length: float,
+    depth: float,
+    chords: list[tuple[str, float, float]],
+    across: list[GridLine],
+    size: float,
+) -> TransferDiaphragm:
+    """The forces of one transfer region between lines ``at`` and ``far`` (m), spanning
+    t_lo–t_hi, loaded by ``chords`` (offset chord line, t in m, force N tension +)."""
     axis = analogy.axis
     s_index, t_index = _axes(axis)
     tol = 1e-6 * size
@@ -255,7 +273,7 @@ def _one_region(plan, analogy, field_, reactions, name, at, far, t_lo, t_hi, len
     struts = []
     for (line_name, t_c, force) in ordered:
         added = sigma * force * (stations - s_f) / length
-        struts.append(Strut("offset chord", line_name, t_c, stations, added, added))
+        struts.append(Strut("offset chord", line_name, line_name, t_c, stations, added, added))
     # Main chord force on the supports (M/depth on the outline's extremes, as edge_chords).
     chord = analogy.chord
     inside = (chord.stations >= s_lo) & (chord.stations <= s_hi)  # not the stations just outside the region
@@ -265,7 +283,8 @@ def _one_region(plan, analogy, field_, reactions, name, at, far, t_lo, t_hi, len
         main = np.where(np.abs(extreme - t_support) <= tol, sign * chord.force[inside], 0.0)
         added = -p * (s_main - s_f)
         line = next((g.name for g in across if abs(g.origin[t_index] - t_support) <= tol), None)
-        struts.append(Strut("support", line, t_support, s_main, added, main + added))
+        label = line or f"{'xy'[t_index]} = {t_support / plan.length_scale:.4g} {plan.length_unit}"
+        struts.append(Strut("support", line, label, t_support, s_main, added, main + added))
     reactions_out = (q_first * length, -q_last * length)
 
     # Net shears on the lines parallel to the load within the region, and the collectors
@@ -316,9 +335,8 @@ def transfer_peaks(extra: dict) -> tuple[list[tuple[str, float]], list[tuple[str
             if not len(strut.total):
                 continue
             peak = float(strut.total[np.argmax(np.abs(strut.total))])
-            where = strut.line or f"{strut.t:.6g} m"
             if strut.role == "offset chord":
-                collectors.append((f"{td.name} collector on {where}", peak))
+                collectors.append((f"{td.name} collector on {strut.label}", peak))
             else:
-                chords.append((f"{td.name} chord on {where}", peak))
+                chords.append((f"{td.name} chord on {strut.label}", peak))
     return collectors, chords
