@@ -18,7 +18,12 @@ from .postprocess.beam_analogy import (
     edge_chords,
     load_along_span,
 )
+from .postprocess.transfer import transfer_diaphragms
 from .results import CaseResult, ChordResult, LineResult, MethodResult
+
+#: Force left at the end of a line piece, relative to the case's force, above which a
+#: note says that it would have to cross a gap (round-off stays far below).
+GAP_TOLERANCE = 1e-9
 
 __all__ = ["flexible_analysis", "rigid_analysis", "lines_of_resistance", "center_of_rigidity"]
 
@@ -50,15 +55,39 @@ def _case_from_analogy(
     max_displacement: float,
     residual: float,
     extra: dict | None = None,
+    field_=None,
+    reactions: list[WallReaction] | None = None,
 ) -> CaseResult:
+    """Collect one case's beam-analogy results; the transfer diaphragms at chord
+    interruptions are formed from the main analogy (``field_`` and ``reactions`` given)."""
     lines = {}
+    notes: list[str] = []
+    transfers = []
+    if reactions is not None and main.chord is not None:
+        transfers, transfer_notes = transfer_diaphragms(plan, main, field_, reactions)
+        notes += transfer_notes
     for analogy in (main, transverse):
         if analogy is None:
             continue
         for name, d in analogy.lines.items():
+            pieces = np.array([[p.t_start, p.t_end, p.peak, p.peak_at, p.residual] for p in d.pieces]).reshape(-1, 5)
             lines[name] = LineResult(
-                name, d.reaction, d.delivered, d.unit_shear_left, d.unit_shear_right, d.stations, d.force, d.residual
+                name, d.reaction, d.delivered, d.unit_shear_left, d.unit_shear_right, d.stations, d.force, d.residual,
+                pieces=pieces,
             )
+            stranded = [p for p in d.pieces if abs(p.residual) > GAP_TOLERANCE * case.force]
+            if len(d.pieces) > 1 and stranded:
+                scale = plan.length_scale
+                where = ", ".join(
+                    f"{p.t_start / scale:.4g}–{p.t_end / scale:.4g} {plan.length_unit} ({p.residual / case.force:+.3g}·F)"
+                    for p in stranded
+                )
+                notes.append(
+                    f"line {name}: the diaphragm splits this line into {len(d.pieces)} pieces at openings or outside "
+                    f"the outline; force left at the end of the piece(s) {where} would have to cross a gap, where "
+                    "no collector exists: the beam analogy has no load path for it there (see the semi-rigid results, "
+                    "or add walls on that piece)"
+                )
     chords = {}
     if main.chord is not None:
         for name, (stations, force) in edge_chords(plan, main.chord).items():
@@ -79,7 +108,7 @@ def _case_from_analogy(
         max_unit_shear_at=max_at,
         max_displacement=max_displacement,
         equilibrium_residual=max(residual, collector_residual / case.force),
-        extra=extra or {},
+        extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {})},
     )
 
 
@@ -141,6 +170,7 @@ def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         results[case.name] = _case_from_analogy(
             plan, case, forces, main, None, max(drifts), residual,
             {"line_forces": {name: float(f) for (name, _, _), f in zip(supports, line_force, strict=True)}},
+            case.field, reactions,
         )
     return MethodResult("flexible", results, tuple(notes + [
         "max_displacement is the largest drift of a line of resistance; the flexible idealization "
@@ -226,7 +256,8 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
             "rigid_body_motion": {"u": float(u), "v": float(v), "rotation": float(theta)},
             "torsional_ratio": round(ratio, 4),
         }
-        results[case.name] = _case_from_analogy(plan, case, forces, main, transverse, max_disp, residual, extra)
+        results[case.name] = _case_from_analogy(plan, case, forces, main, transverse, max_disp, residual, extra,
+                                                case.field, reactions)
     return MethodResult(
         "rigid",
         results,

@@ -46,6 +46,7 @@ __all__ = [
     "GridLine",
     "Wall",
     "Member",
+    "Transfer",
     "Load",
     "MeshSettings",
     "ClassificationFlags",
@@ -161,6 +162,17 @@ class Member:
     effective_width: float  # m, total width of the membrane strip centred on the line, counted with the bar
 
 
+@dataclass(frozen=True)
+class Transfer:
+    """A ``[[transfer]]`` entry: the transfer region for a chord interrupted at grid line
+    ``at`` (a notch or offset) spans from ``at`` to grid line ``to`` on the full-depth
+    side, across the full depth there. Both lines are parallel to the load it serves."""
+
+    name: str
+    at: str
+    to: str
+
+
 @dataclass(frozen=True, eq=False)
 class Load:
     """One ``[[load]]`` entry, in SI units (weights N/m², N/m, N; forces N)."""
@@ -229,6 +241,7 @@ class Plan:
         if self.chord_EA is not None:
             return self.chord_EA, "chord_EA"
         return None, None
+    transfers: tuple[Transfer, ...] = ()
 
     def line(self, name: str) -> GridLine:
         for grid_line in self.grid_lines:
@@ -443,6 +456,7 @@ class _PlanBuilder:
         walls = self.walls(doc["wall"], lines_by_name, region)
         members = self.members(doc.get("member", []), lines_by_name, region)
         loads = self.loads(doc.get("load", []), lines_by_name, zones, region)
+        transfers = self.transfers(doc.get("transfer", []), lines_by_name)
         mesh = self.mesh_settings(doc.get("mesh", {}), size)
         classification = self.classification(doc.get("classification", {}))
         if self.problems:
@@ -465,6 +479,7 @@ class _PlanBuilder:
             mesh=mesh,
             classification=classification,
             collector_EA=collector_EA,
+            transfers=tuple(transfers),
         )
         check_stability(plan)
         return plan
@@ -691,6 +706,43 @@ class _PlanBuilder:
                 continue
             members.append(Member(role, line.name, t0, t1, EA, width * self.scale))
         return members
+
+    def transfers(self, raw: list, lines: dict[str, GridLine]) -> list[Transfer]:
+        """``[[transfer]]`` entries: two distinct parallel grid lines of grid.x or grid.y."""
+        found: list[Transfer] = []
+        for i, entry in enumerate(raw):
+            name = entry.get("name", f'TD {entry["at"]}-{entry["to"]}')
+            where = f'transfer "{name}"' if "name" in entry else f"transfer #{i + 1}"
+            ends = []
+            for key in ("at", "to"):
+                line_name = entry[key]
+                if line_name not in lines:
+                    close = difflib.get_close_matches(line_name, list(lines), n=1)
+                    hint = f' (did you mean "{close[0]}"?)' if close else ""
+                    self.problem(where + "." + key, f'"{line_name}" is not a grid line (grid lines: {", ".join(lines)}){hint}')
+                    continue
+                ends.append(lines[line_name])
+            if len(ends) != 2:
+                continue
+            at, to = ends
+            if at.family == "skew" or to.family != at.family:
+                self.problem(where, f'"at" and "to" must both be lines of grid.x or both of grid.y (parallel to the load '
+                                    f'they serve); "{at.name}" and "{to.name}" are not')
+                continue
+            k = 0 if at.family == "x" else 1
+            if abs(at.origin[k] - to.origin[k]) <= self.tol:
+                self.problem(where, '"at" and "to" are the same position; "to" is the grid line that closes the '
+                                    "transfer region on the full-depth side")
+                continue
+            if any(t.name == name for t in found):
+                self.problem(where, "the name is used twice; give every transfer region its own name")
+                continue
+            if any(t.at == at.name and (to.origin[k] - at.origin[k]) * (lines[t.to].origin[k] - at.origin[k]) > 0
+                   for t in found):
+                self.problem(where, f'a transfer region from line "{at.name}" on that side is already given; keep one')
+                continue
+            found.append(Transfer(name, at.name, to.name))
+        return found
 
     def loads(self, raw: list, lines: dict[str, GridLine], zones: list[Zone], region: Polygon) -> list[Load]:
         loads: list[Load] = []

@@ -42,7 +42,12 @@ METHODS_TEXT = [
     ("Rigid", "Three rigid-body degrees of freedom from the stiffness of every wall; center of rigidity from "
      "the rigid-body flexibility; wall force = stiffness × displacement along the wall."),
     ("Beam analogy", "Shear and moment along the span from loads and wall forces; unit shear = V / length of "
-     "diaphragm present; collector force = running sum of delivered shear minus wall reaction; chord force = M / depth."),
+     "diaphragm present; on a grid line each side delivers its shear over the length present on that side; lines "
+     "are split at gaps (openings, outside the outline) and nothing is carried across a gap; collector force = "
+     "running sum of delivered shear minus wall reaction per piece; chord force = M / depth."),
+    ("Transfer diaphragms", "At a notch or offset the offset chord force M / reduced depth is carried by a collector "
+     "into a transfer region of the full-depth diaphragm spanning across the load between its chords (Malone & Rice "
+     "2012, ch. 3–4); transfer shear = its beam shear / region length, added to the main shear (net shear)."),
     ("Semi-rigid", "Plane-stress membrane (quadratic triangles by default) with per-unit-width rigidities: wood "
      "panels G·t = Ga (SDPWS), steel deck G·t = G′ (AISI S310), concrete E·t with a cracked-section factor; "
      "wind on the faces, wall weights across the load and point weights spread across the depth along their "
@@ -85,6 +90,15 @@ LIMITATIONS_TEXT = [
     "Peaks of unit shear at re-entrant corners and wall ends depend on the mesh (stress concentrations).",
     "Code checks are limited to the flexibility classification; capacities are not checked.",
 ]
+
+
+_TRANSFER_INTRO = (
+    "<p>Where a notch or offset interrupts a chord, the offset chord force (M / reduced depth) is carried by a "
+    "collector into a transfer region of the full-depth diaphragm that spans across the load between its "
+    "supports (Malone &amp; Rice 2012, ch. 3–4). Unit shears have the sign of the diaphragm shear V; net = main + "
+    "transfer. Reactions are forces along the span delivered to the supports. Representative base case per "
+    "direction; every case is in transfer.csv, net_shears.csv and results.json.</p>"
+)
 
 
 def _esc(value) -> str:
@@ -218,12 +232,51 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
         for zone, item in case.get("unit_shear_by_zone", {}).items():
             rows.append([case_name, zone, item["value"], f"({item['at'][0]:.4g}, {item['at'][1]:.4g})"])
     tables["unit_shear"] = (["case", "zone", f"max unit shear ({units['unit_shear']})", f"at ({p})"], rows)
+    tables.update(transfer_tables(doc, set(_base_cases(doc).values())))
     rows = []
     for m, method in doc["assumptions"].items():
         for case_name, case in method["cases"].items():
             rows.append([m, case_name, case["applied_force"], case["equilibrium_residual"]])
     tables["residuals"] = (["assumption", "case", f"applied force ({f})", "relative residual"], rows)
     return tables
+
+
+def transfer_tables(doc: dict, cases: set[str] | None = None) -> dict[str, tuple[list[str], list[list]]]:
+    """Transfer diaphragms of the idealized methods (``cases``: only these, None: all):
+    one summary row per region and case, and the net shears per line segment."""
+    units = doc["units"]
+    f, p, v = units["force"], units["position"], units["unit_shear"]
+    summary, net, notes = [], [], {}
+    for m, method in doc["assumptions"].items():
+        for case_name, case in method["cases"].items():
+            for note in case.get("notes", []):
+                notes.setdefault(note, []).append(f"{m} {case_name}")
+            if cases is not None and case_name not in cases:
+                continue
+            for td in case.get("transfer", []):
+                summary.append([
+                    m, case_name, td["name"], f"{td['at_line']} to {td['far_line']}",
+                    "; ".join(f"{c['line']}: {_plain(c['force'])}" for c in td["chord_forces"]),
+                    ", ".join(_plain(r) for r in td["reactions"]),
+                    "; ".join(f"{_plain(t['from'])}-{_plain(t['to'])}: {_plain(t['shear'])}" for t in td["transfer_shears"]),
+                    "; ".join(f"{st['role']} {st['label']}: {_plain(st['peak'])}" for st in td["struts"]),
+                    "; ".join(f"{n}: {_plain(c['collector_peak'])}" for n, c in td["collectors"].items()),
+                ])
+                net += [[m, case_name, td["name"], n["line"], n["side"], n["from"], n["to"], n["main"], n["transfer"],
+                         n["net"]] for n in td["net_shears"]]
+    return {
+        "transfer": (
+            ["assumption", "case", "region", "lines", f"offset chord force ({f})", f"reactions at supports ({f})",
+             f"transfer shear ({p}: {v})", f"strut peaks ({f})", f"collector peaks with transfer ({f})"],
+            summary,
+        ),
+        "net_shears": (
+            ["assumption", "case", "region", "line", "side", f"from ({p})", f"to ({p})", f"main ({v})",
+             f"transfer ({v})", f"net ({v})"],
+            net,
+        ),
+        "case_notes": (["note", "assumption and cases"], [[n, ", ".join(where)] for n, where in notes.items()]),
+    }
 
 
 def write_tables(folder: Path, doc: dict) -> list[str]:
@@ -260,6 +313,9 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
             rows.append([axis, span["case"], span["span"], span["MDD"], span["ADVE"], span["ratio"],
                          span["flexible"], span["behaviour"], check["verdict"], *(span.get("MDD_at") or ["", ""]),
                          span.get("MDD_local"), *(span.get("MDD_local_at") or ["", ""])])
+    transfer = transfer_tables(doc)
+    write("transfer.csv", *transfer["transfer"])
+    write("net_shears.csv", *transfer["net_shears"])
     write("classification.csv", ["direction", "case", "span", f"MDD [{d}]", f"ADVE [{d}]", "ratio [-]",
                                  "flexible", "behaviour", "verdict", "MDD_x", "MDD_y", f"MDD_local [{d}]",
                                  "MDD_local_x", "MDD_local_y"], rows)
@@ -400,6 +456,8 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("chord_walls", "Walls along chord lines: chord force against M/d"),
                            ("walls_across", "Walls across the load: force from chord elongation"),
+                           ("transfer", "Transfer diaphragms"), ("net_shears", "Net shears in transfer regions"),
+                           ("case_notes", "Notes per case"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
             sections.append((title, _plain_rows(headers, rows)))
@@ -479,6 +537,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
         section("Collectors", tab("collectors") + figs(figures["collectors"])),
         section("Chords", tab("chords") + figs(figures["chords"])),
         section("Walls along chord lines", f"<p>{_esc(CHORD_WALLS_TEXT)}</p>" + tab("chord_walls") + tab("walls_across")),
+        section("Transfer diaphragms (flexible and rigid methods)", _TRANSFER_INTRO + tab("transfer") + tab("net_shears")),
+        section("Notes per case", tab("case_notes")),
         section("Unit shear", tab("unit_shear") + figs(figures["shear"])),
         section("Deflected shape", figs(figures["deflected"])),
         section("Equilibrium residuals", tab("residuals")),

@@ -15,6 +15,7 @@ __all__ = [
     "CaseResult",
     "MethodResult",
     "method_to_json",
+    "transfer_to_json",
     "classification_to_json",
     "envelope_to_json",
     "comparison_to_json",
@@ -38,6 +39,7 @@ class LineResult:
     # Semi-rigid only, lines with walls: the collector of each run of the line's wall pieces,
     # (kind "declared" | "chord" | "implied" | "none", t_from m, t_to m, EA N).
     collector_segments: tuple[tuple[str, float, float, float], ...] = ()
+    pieces: np.ndarray | None = None  # idealized: (k, 5) t_start, t_end, peak, peak_at, residual per piece (m, N)
 
     @property
     def peak(self) -> float:
@@ -124,6 +126,12 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
                  "EA": _r(units.force_out(EA))}
                 for kind, a, b, EA in line.collector_segments
             ]
+        if line.pieces is not None:
+            lines[name]["pieces"] = [
+                {"from": _r(units.length_out(t0)), "to": _r(units.length_out(t1)), "peak": _r(units.force_out(pk)),
+                 "peak_at": _r(units.length_out(at)), "residual": _r(units.force_out(res))}
+                for t0, t1, pk, at, res in line.pieces
+            ]
         if line.side_shear is not None:
             lines[name]["delivered_shear_diagram"] = [
                 [_r(units.length_out(t)), _r(units.line_force_out(a)), _r(units.line_force_out(b))]
@@ -167,6 +175,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             }
         elif key == "walls_along_chords":
             out[key] = walls_along_chords_to_json(value, units)
+        elif key == "transfer":
+            out[key] = [transfer_to_json(td, units) for td in value]
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:
@@ -201,6 +211,41 @@ def walls_along_chords_to_json(value: dict, units: OutputUnits) -> dict:
                    "chord_force": _r(force(item["chord_force"])), "share_lost": _r(item["share_lost"], 4),
                    "walls_force": _r(force(item["walls_force"])), "walls_share": _r(item["walls_share"], 4)}
             for name, item in value["chords"].items()
+        },
+    }
+
+
+def transfer_to_json(td, units: OutputUnits) -> dict:
+    """One transfer diaphragm (see planshear.postprocess.transfer) in output units."""
+    length, force, shear = units.length_out, units.force_out, units.line_force_out
+
+    def diagram(stations, values):
+        return [[_r(length(a)), _r(force(b))] for a, b in zip(stations, values, strict=True)]
+
+    return {
+        "name": td.name,
+        "load_axis": td.axis,
+        "at_line": td.at_line,
+        "far_line": td.far_line,
+        "region": {"along_span": [_r(length(v)) for v in td.s_range], "across": [_r(length(v)) for v in td.t_range]},
+        "chord_forces": [{"line": line, "at": _r(length(t)), "force": _r(force(f))} for line, t, f in td.chord_forces],
+        "reactions": [_r(force(r)) for r in td.reactions],
+        "transfer_shears": [{"from": _r(length(a)), "to": _r(length(b)), "shear": _r(shear(v))} for a, b, v in td.shears],
+        "net_shears": [
+            {"line": n.line, "side": n.side, "from": _r(length(n.t_start)), "to": _r(length(n.t_end)),
+             "main": _r(shear(n.main)), "transfer": _r(shear(n.transfer)), "net": _r(shear(n.net))}
+            for n in td.net
+        ],
+        "struts": [
+            {"role": s.role, "line": s.line, "label": s.label, "at": _r(length(s.t)),
+             "peak": _r(force(s.total[np.argmax(np.abs(s.total))])) if len(s.total) else 0.0,
+             "added": diagram(s.stations, s.added), "diagram": diagram(s.stations, s.total)}
+            for s in td.struts
+        ],
+        "collectors": {
+            name: {"collector_peak": _r(force(d.peak)), "collector_peak_at": _r(length(d.peak_position)),
+                   "collector": diagram(d.stations, d.force), "residual": _r(force(d.residual))}
+            for name, d in td.collectors.items()
         },
     }
 

@@ -202,6 +202,19 @@ PLAN_SCHEMA: dict = {
                 "additionalProperties": False,
             },
         },
+        "transfer": {
+            "type": "array",
+            "items": {
+                "type": "object",
+                "required": ["at", "to"],
+                "properties": {
+                    "name": {"type": "string"},
+                    "at": {"type": "string"},
+                    "to": {"type": "string"},
+                },
+                "additionalProperties": False,
+            },
+        },
         "mesh": {
             "type": "object",
             "properties": {

@@ -7,10 +7,13 @@ module gives:
 * the shear V(s) and moment M(s) diagrams (exact integrals of the real plan's load);
 * the unit shear V/ℓ(s) where ℓ(s) is the diaphragm length actually present at s
   (openings and notches reduce it) and its maximum over the plan;
-* on every grid line parallel to d, the unit shear delivered from each side, and the
-  collector diagram N(t) as the running sum of (delivered shear + loads on the line −
-  wall reactions) along the line, tension positive, with its peak, position and the
-  residual at the far end;
+* on every grid line parallel to d, the unit shear delivered from each side over the
+  length of diaphragm present on that side (a notch, an offset or a courtyard leaves one
+  side shorter), and the collector diagram N(t) as the running sum of (delivered shear +
+  loads on the line − wall reactions) along the line, tension positive, with its peak and
+  position; the line is split into pieces at gaps (outside the outline, inside an
+  opening), each piece summed from zero, and the force left at the end of each piece is
+  reported (it would have to cross a gap, which no member does);
 * the chord force M/depth along the span, depth being the outline's extent at s.
 
 Walls at an angle to the load contribute their component along d as reactions and their
@@ -37,6 +40,7 @@ from .distribution import SpanLoad
 
 __all__ = [
     "WallReaction",
+    "LinePiece",
     "LineDiagram",
     "ChordDiagram",
     "BeamAnalogy",
@@ -59,6 +63,17 @@ class WallReaction:
     force: np.ndarray  # (2,) force on the wall; the diaphragm receives −force
 
 
+@dataclass(frozen=True)
+class LinePiece:
+    """One continuous piece of a grid line over the diaphragm (between gaps)."""
+
+    t_start: float  # m
+    t_end: float  # m
+    peak: float  # N, largest-magnitude collector force on the piece
+    peak_at: float  # m
+    residual: float  # N, force left at the piece's end: it would have to cross a gap
+
+
 @dataclass(frozen=True, eq=False)
 class LineDiagram:
     """Collector diagram along one grid line (t measured as in the plan file)."""
@@ -69,9 +84,12 @@ class LineDiagram:
     length_available: float  # m of diaphragm present along the line
     unit_shear_left: float  # N/m delivered from the smaller-coordinate side, along the line
     unit_shear_right: float  # N/m delivered from the larger-coordinate side
+    length_left: float  # m of diaphragm present just beside the line on the smaller-s side
+    length_right: float  # m present on the larger-s side
     stations: np.ndarray  # (n,) t in m; repeated where a concentrated force makes a jump
-    force: np.ndarray  # (n,) axial force N, tension positive
-    residual: float  # N, force left at the far end (zero in exact equilibrium)
+    force: np.ndarray  # (n,) axial force N, tension positive, piece after piece
+    residual: float  # N, sum of the pieces' end forces (zero in exact equilibrium)
+    pieces: tuple[LinePiece, ...] = ()
 
     @property
     def peak_index(self) -> int:
@@ -119,6 +137,7 @@ class BeamAnalogy:
     closure_shear: float  # V at the far end (N), zero in equilibrium
     closure_moment: float  # M at the far end (N·m)
     notes: list[str] = field(default_factory=list)
+    along: SpanLoad | None = None  # forces along the load per unit span: applied + wall reactions
 
 
 def _axes(axis: str) -> tuple[int, int]:
@@ -290,7 +309,36 @@ def beam_analogy(
         max_unit_shear_at=at,
         closure_shear=float(-f_end[0]),
         closure_moment=closure_moment,
+        along=along,
     )
+
+
+def side_intervals(plan: Plan, grid_line: GridLine, s_index: int, offset: float) -> list[tuple[float, float]]:
+    """Intervals (t0, t1) of the grid line, in its own t (m), over which the diaphragm is
+    present at a distance ``offset`` (m, signed, along s) beside the line."""
+    shift = np.zeros(2)
+    shift[s_index] = offset
+    a = grid_line.point(grid_line.t_min) + shift
+    b = grid_line.point(grid_line.t_max) + shift
+    cut = LineString([a, b]).intersection(plan.region)
+    out = []
+    for g in getattr(cut, "geoms", [cut]):
+        if isinstance(g, LineString) and not g.is_empty:
+            ts = (np.asarray(g.coords) - shift - grid_line.origin) @ grid_line.direction
+            if ts.max() - ts.min() > 0:
+                out.append((float(ts.min()), float(ts.max())))
+    return sorted(out)
+
+
+def _merge(intervals: list[tuple[float, float]], gap: float) -> list[tuple[float, float]]:
+    """Union of intervals, joining those closer than ``gap``."""
+    merged: list[list[float]] = []
+    for t0, t1 in sorted(intervals):
+        if merged and t0 <= merged[-1][1] + gap:
+            merged[-1][1] = max(merged[-1][1], t1)
+        else:
+            merged.append([t0, t1])
+    return [(a, b) for a, b in merged]
 
 
 def _line_diagram(
@@ -301,24 +349,39 @@ def _line_diagram(
     reactions: list[WallReaction],
     field_: ForceField | None,
     size: float,
+    extra_spans: list[tuple[float, float, float]] | None = None,
 ) -> LineDiagram:
-    """Collector diagram on a grid line parallel to the load axis."""
+    """Collector diagram on a grid line parallel to the load axis.
+
+    Each side delivers its shear over the length of diaphragm present on that side: the
+    side of smaller s delivers −V(s⁻) spread uniformly over the part of the line with
+    diaphragm just beside it on that side, the side of larger s delivers V(s⁺) likewise.
+    The line is split into pieces at gaps (outside the outline or inside an opening);
+    each piece has its own running sum from zero, and what is left at the end of a piece
+    is reported as that piece's residual, never carried across the gap.
+    ``extra_spans`` (t0, t1, total force along +t, N) are added forces on the line (the
+    transfer-diaphragm shears of :mod:`.transfer`).
+    """
     s_index, t_index = _axes(axis)
     e_t = np.eye(2)[t_index]
     s_line = float(grid_line.origin[s_index])
     tol = 1e-9 * size
+    eps = 1e-7 * size  # offset that reads the diaphragm on each side of the line
     # Shear just before/after the line, without the forces that act on the line itself.
     before, _ = along.cumulative(np.array([s_line]), inclusive=False)
     after, _ = along.cumulative(np.array([s_line]), inclusive=True)
     v_before, v_after = -before[0], -after[0]
 
-    segment = grid_line.segment(grid_line.t_min, grid_line.t_max)
-    present = segment.intersection(plan.region)
-    pieces = [g for g in getattr(present, "geoms", [present]) if isinstance(g, LineString) and g.length > tol]
-    available = float(sum(g.length for g in pieces))
+    left = side_intervals(plan, grid_line, s_index, -eps)
+    right = side_intervals(plan, grid_line, s_index, eps)
+    on_line = side_intervals(plan, grid_line, s_index, 0.0)
+    length_left = float(sum(b - a for a, b in left))
+    length_right = float(sum(b - a for a, b in right))
+    pieces_t = _merge(left + right + on_line, 10 * eps)
+    available = float(sum(b - a for a, b in pieces_t))
 
     # Distributed forces along t on the line (N per segment), and concentrated ones.
-    spans: list[tuple[float, float, float]] = []
+    spans: list[tuple[float, float, float]] = list(extra_spans or [])
     points: list[tuple[float, float]] = []
 
     def t_of(p) -> float:
@@ -342,30 +405,49 @@ def _line_diagram(
             spans.append((*sorted((t_of(r.start), t_of(r.end))), f_on_line))
             reaction += float(r.force @ grid_line.direction)
     # Equilibrium of the strip along the line: loads on it + wall forces on it + what the
-    # diaphragm delivers from both sides = 0, and V jumps by −(loads + wall forces), so
-    # the diaphragm delivers V(after) − V(before), spread over the length present.
+    # diaphragm delivers from both sides = 0. Each side delivers its own shear over the
+    # length present on that side (along +t: −V(before) from the left, V(after) from the right).
     delivered_to_line = v_after - v_before
-    if available > tol:
-        for g in pieces:
-            coords = np.asarray(g.coords)
-            t0, t1 = sorted((t_of(coords[0]), t_of(coords[-1])))
-            spans.append((t0, t1, delivered_to_line * (t1 - t0) / available))
+    unit_left = -v_before / length_left if length_left > tol else 0.0
+    unit_right = v_after / length_right if length_right > tol else 0.0
+    spans += [(a, b, unit_left * (b - a)) for a, b in left]
+    spans += [(a, b, unit_right * (b - a)) for a, b in right]
     # Direction sign: forces are along e_t; the line's own direction may be ±e_t.
     sign = float(grid_line.direction @ e_t)
-    stations, force = _running_axial_force(spans, points, grid_line.t_min, grid_line.t_max, sign)
-    residual = float(force[-1]) if len(force) else 0.0
+    pieces, all_stations, all_forces = [], [], []
+    assigned = np.zeros(len(spans), dtype=bool)
+    point_assigned = np.zeros(len(points), dtype=bool)
+    for t0, t1 in pieces_t:
+        in_piece = [i for i, (a, b, _) in enumerate(spans) if a >= t0 - 10 * eps and b <= t1 + 10 * eps]
+        p_in = [i for i, (t, _) in enumerate(points) if t0 - 10 * eps <= t <= t1 + 10 * eps]
+        assigned[in_piece] = True
+        point_assigned[p_in] = True
+        stations, force = _running_axial_force(
+            [spans[i] for i in in_piece], [points[i] for i in p_in], t0, t1, sign
+        )
+        k = int(np.argmax(np.abs(force)))
+        pieces.append(LinePiece(t0, t1, float(force[k]), float(stations[k]), float(force[-1])))
+        all_stations.append(stations)
+        all_forces.append(force)
+    unplaced = float(sum(s[2] for s, ok in zip(spans, assigned, strict=True) if not ok))
+    unplaced += float(sum(p[1] for p, ok in zip(points, point_assigned, strict=True) if not ok))
+    stations = np.concatenate(all_stations) if all_stations else np.zeros(0)
+    force = np.concatenate(all_forces) if all_forces else np.zeros(0)
     return LineDiagram(
         name=grid_line.name,
         reaction=reaction,
         delivered=delivered_to_line,
         length_available=available,
-        # Delivered to the line per unit length from each side, along +t: the part on the
-        # smaller-s side pushes with −V(before), the part on the larger side with V(after).
-        unit_shear_left=-v_before / available if available > tol else 0.0,
-        unit_shear_right=v_after / available if available > tol else 0.0,
+        unit_shear_left=unit_left,
+        unit_shear_right=unit_right,
+        length_left=length_left,
+        length_right=length_right,
         stations=stations,
         force=force,
-        residual=residual,
+        # Overall closure: the sum of the piece residuals and of any force on the line that
+        # lies on no piece (zero in exact equilibrium).
+        residual=float(sum(p.residual for p in pieces)) - sign * unplaced,
+        pieces=tuple(pieces),
     )
 
 

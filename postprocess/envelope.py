@@ -16,6 +16,7 @@ from planshear.loads import LoadCase
 from planshear.results import MethodResult
 
 from .classify import Classification
+from .transfer import transfer_peaks
 
 __all__ = ["Governing", "Envelope", "build_envelope", "compare_walls"]
 
@@ -91,11 +92,21 @@ def build_envelope(
                     r["design"] = _better(r["design"], line.reaction, assumption, case_name)
                     c["design"] = _better(c["design"], line.peak, assumption, case_name)
                     c["with_overstrength"] = _better(c["with_overstrength"], omega * line.peak, assumption, case_name)
-            for name, chord in result.chords.items():
-                slot = chords.setdefault(name, {"design": None, "information": None})
-                slot["information"] = _better(slot["information"], chord.peak, assumption, case_name)
+            # Transfer diaphragms (flexible, rigid): their collectors and chords are enveloped too.
+            extra_collectors, extra_chords = transfer_peaks(result.extra)
+            for name, peak in extra_collectors:
+                reactions.setdefault(name, {"design": None, "information": None})
+                c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
+                c["information"] = _better(c["information"], peak, assumption, case_name)
                 if design:
-                    slot["design"] = _better(slot["design"], chord.peak, assumption, case_name)
+                    c["design"] = _better(c["design"], peak, assumption, case_name)
+                    c["with_overstrength"] = _better(c["with_overstrength"], omega * peak, assumption, case_name)
+            peaks = [(name, chord.peak) for name, chord in result.chords.items()] + extra_chords
+            for name, peak in peaks:
+                slot = chords.setdefault(name, {"design": None, "information": None})
+                slot["information"] = _better(slot["information"], peak, assumption, case_name)
+                if design:
+                    slot["design"] = _better(slot["design"], peak, assumption, case_name)
     # The semi-rigid model lists its wall pieces with their collector (see fem/collectors.py);
     # a piece with no bar at all gets a caution naming its walls.
     bare: dict[str, list[str]] = {}

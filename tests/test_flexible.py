@@ -201,21 +201,33 @@ def test_irregular_plan_against_hand_integration(plan_from):
         assert abs(line.residual) <= 1e-9 * max(abs(line.reaction), 1.0)
 
 
-def test_line_crossing_an_opening_has_reduced_length(plan_from):
-    """Line 2 at x = 60 does not cross the opening; a line through it would. Use a plan where
-    the interior line passes through the opening: unit shear = V / (depth − opening)."""
+def test_line_crossing_an_opening_is_split_into_pieces(plan_from):
+    """Line 2 moved to x = 40 crosses the opening (y 20–32); the wall W2 is on the upper
+    piece only. Statics: each side delivers V/(length present on that side) = V/58 ft; the
+    lower piece (0–20 ft) has no wall, so its 20 ft of delivered shear is left at its end
+    (it would have to cross the opening) and the upper piece starts again from zero.
+    Before this was fixed the force was carried across the opening."""
     text = L_PLAN.replace('"2" = 60', '"2" = 40').replace("from = 50\n    to = 62", "from = 40\n    to = 60")
     text = text.replace("from = 50\nto = 62", "from = 40\nto = 60")
     plan = plan_from(text)
-    case = _flexible(plan).cases["E+y"]
+    result = _flexible(plan)
+    case = result.cases["E+y"]
     line = case.lines["2"]
     assert line.delivered / KIP == pytest.approx(case.wall_forces["W2"] / KIP, rel=1e-12)
-    # The delivered shear is spread over the 58 ft present, not the 70-ft depth:
-    # along the opening (y 20–32) the collector force does not change.
+    # Both sides have 58 ft of diaphragm beside the line; together they deliver the line force.
+    total_unit = line.unit_shear_right + line.unit_shear_left
+    assert total_unit * 58 * FT == pytest.approx(line.delivered, rel=1e-9)
+    pieces = line.pieces
+    np.testing.assert_allclose(pieces[:, :2] / FT, [[0, 20], [32, 70]], atol=1e-6)
+    # Lower piece: no wall, the residual is the shear delivered over its 20 ft.
+    assert abs(pieces[0, 4]) == pytest.approx(abs(total_unit) * 20 * FT, rel=1e-6)
+    # Upper piece closes at its end, and the whole line is still in equilibrium.
+    assert abs(pieces[1, 4]) == pytest.approx(abs(total_unit) * 20 * FT, rel=1e-6)
+    assert abs(line.residual) <= 1e-9 * abs(line.reaction)
+    assert any("line 2" in note and "cross a gap" in note for note in case.extra["notes"])
+    # No diagram station lies inside the opening.
     s = line.stations / FT
-    n = line.collector
-    at20, at32 = np.interp(20.0, s, n), np.interp(32.0, s, n)
-    assert at20 == pytest.approx(at32, abs=1e-9 * KIP)
+    assert not np.any((s > 20 + 1e-6) & (s < 32 - 1e-6))
 
 
 def test_one_line_of_resistance_is_not_a_flexible_structure(plan_from):
