@@ -99,6 +99,9 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("interrupted; earlier results (if any) were left as they were", file=sys.stderr)
         return EXIT_INTERNAL
+    except BrokenPipeError:  # the reader of our output went away (e.g. `| head`): not an error
+        sys.stderr.close()
+        return EXIT_OK
     except Exception as exc:  # the one place that turns an unexpected failure into a message
         print(f"internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         print("This is a bug in planshear; please report it with the plan file.", file=sys.stderr)
@@ -123,12 +126,14 @@ def _print_check(summary: dict) -> None:
     print(f"  diaphragm area: {summary[area_key]:.6g} {area_key[5:]}")
     print(f"  walls along x: {', '.join(summary['walls_along_x']) or '-'}")
     print(f"  walls along y: {', '.join(summary['walls_along_y']) or '-'}")
+    force = summary["stiffness_unit"].split("/")[0]
+    length = summary["length_unit"]
     for name, load in summary["loads"].items():
         line = f"  load {name} ({load['kind']}):"
         if "seismic_weight" in load:
             cm = ", ".join(f"{c:.4g}" for c in load["center_of_mass"])
-            line += f" weight {load['seismic_weight']:.5g}, center of mass ({cm}),"
-        line += " force " + ", ".join(f"{axis}: {f:.5g}" for axis, f in load["force"].items())
+            line += f" weight {load['seismic_weight']:.5g} {force}, center of mass ({cm}) {length},"
+        line += " force " + ", ".join(f"{axis}: {f:.5g} {force}" for axis, f in load["force"].items())
         print(line)
     print(f"  load cases: {', '.join(summary['cases'])}")
 

@@ -141,15 +141,37 @@ def _diagram_figure(doc: dict, cases: dict[str, str], pick, height: float, xlabe
 
 def collector_figure(doc: dict, line: str, cases: dict[str, str]) -> Figure:
     """Collector force along a line under each assumption for the given cases
-    (assumption → case name), peaks marked."""
+    (assumption → case name), peaks marked; the diagram is broken where the line crosses
+    a gap (an opening or outside the outline), since nothing is carried there."""
     units = doc["units"]
+    gaps = _line_gaps(doc, line)
 
     def pick(case_doc):
         data = case_doc.get("lines", {}).get(line)
-        return data and (data["collector"], data["collector_peak_at"], data["collector_peak"])
+        return data and (_broken_at(data["collector"], gaps), data["collector_peak_at"], data["collector_peak"])
 
     return _diagram_figure(doc, cases, pick, 3.2, f"position along line {line} ({units['position']})",
                            f"N ({units['force']}), tension +", f"Collector force along line {line}", True)
+
+
+def _line_gaps(doc: dict, line: str) -> list[tuple[float, float]]:
+    """Gaps (start, end) between the pieces of a line, from the idealized results."""
+    for method in doc["assumptions"].values():
+        for case_doc in method["cases"].values():
+            pieces = case_doc.get("lines", {}).get(line, {}).get("pieces")
+            if pieces:
+                return [(a["to"], b["from"]) for a, b in zip(pieces[:-1], pieces[1:], strict=True) if b["from"] > a["to"]]
+    return []
+
+
+def _broken_at(points: list, gaps: list[tuple[float, float]]) -> list:
+    """Diagram points with a NaN row wherever consecutive points straddle a gap."""
+    out: list = []
+    for point in points:
+        if out and any(out[-1][0] <= g0 and point[0] >= g1 for g0, g1 in gaps):
+            out.append([np.nan, np.nan])
+        out.append(point)
+    return out
 
 
 def chord_figure(doc: dict, edge: str, cases: dict[str, str]) -> Figure:
@@ -226,7 +248,8 @@ def span_deflection_figure(plan, spans, case: str, axis: str, units: dict, disp_
         k = int(np.argmin(np.abs(span.stations - span.mdd_at[s_index])))
         value = span.deflection[k] * disp_factor
         ax.plot([s[k]], [value], marker="o", color=style["color"], ms=6)
-        ax.annotate(f"MDD {abs(value):.3g} {units['displacement']}\nMDD/ADVE {span.ratio:.3g}",
+        ratio = f"{span.ratio:.3g}" if span.ratio < 1000 else f"{span.ratio:,.0f}"
+        ax.annotate(f"MDD {abs(value):.3g} {units['displacement']}\nMDD/ADVE {ratio}",
                     (s[k], value), textcoords="offset points", xytext=(0, 10 if value >= 0 else -22),
                     ha="center", fontsize=7, color=INK)
         local_s = span.mdd_local_at[s_index] * scale
@@ -243,4 +266,6 @@ def span_deflection_figure(plan, spans, case: str, axis: str, units: dict, disp_
     ax.set_xlabel(f"{'x' if axis == 'y' else 'y'} ({plan.length_unit})", fontsize=8)
     ax.set_ylabel(f"deflection relative to supports ({units['displacement']})", fontsize=8)
     ax.set_title(f"Diaphragm deflection along the span, semi-rigid, {case} (load along {axis})", fontsize=9)
+    fig.text(0.01, 0.01, "At a line of resistance the curve need not be zero: the support drift is the mean drift "
+             "of the line's walls, and parts of the section away from them deflect more.", fontsize=6.5, color=INK)
     return fig

@@ -790,6 +790,10 @@ class _PlanBuilder:
                     self.problem(where, 'an edge load needs "intensity" (force per unit of plan width, applied on the faces '
                                  'the wind reaches first), e.g. "0.3 kip/ft", or "windward" and "leeward" to split it')
                     continue
+                if given == ["leeward"]:
+                    self.problem(where, 'gives "leeward" without "windward"; give both (e.g. windward = "0.18 kip/ft", '
+                                 'leeward = "0.12 kip/ft"), or "intensity" for the whole load on the windward faces')
+                    continue
                 windward_key = "intensity" if "intensity" in entry else "windward"
                 intensity = (self.quantity(entry[windward_key], LINE_LOAD, f"{where}.{windward_key}", positive=windward_key == "intensity")
                              if windward_key in entry else 0.0)
