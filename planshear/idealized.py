@@ -9,7 +9,7 @@ from __future__ import annotations
 import numpy as np
 
 from .errors import AnalysisError
-from .loads import LoadCase
+from .loads import ForceField, LoadCase, torsion_areas
 from .plan import Plan, Wall, rigid_stiffness_rows
 from .postprocess.beam_analogy import (
     BeamAnalogy,
@@ -229,7 +229,13 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
     for j, case in enumerate(selected):
         forces = {w.id: float(wall_forces[i, j]) for i, w in enumerate(plan.walls)}
         reactions = _wall_reactions(plan, forces)
-        main = beam_analogy(plan, case.axis, case.field, reactions)
+        # The accidental torsion acts on the diaphragm too, so that V and M close.
+        field_ = case.field
+        if case.torsion:
+            field_ = ForceField(case.field.direction,
+                                case.field.areas + torsion_areas(plan, case.axis, case.direction, case.torsion),
+                                case.field.lines, case.field.points)
+        main = beam_analogy(plan, case.axis, field_, reactions)
         other = "x" if case.axis == "y" else "y"
         transverse = beam_analogy(plan, other, None, reactions, with_chords=False)
         u, v, theta = motion[:, j]
@@ -257,7 +263,7 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
             "torsional_ratio": round(ratio, 4),
         }
         results[case.name] = _case_from_analogy(plan, case, forces, main, transverse, max_disp, residual, extra,
-                                                case.field, reactions)
+                                                field_, reactions)
     return MethodResult(
         "rigid",
         results,

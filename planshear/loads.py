@@ -29,6 +29,7 @@ __all__ = [
     "fpx_force",
     "windward_segments",
     "spread_across_depth",
+    "torsion_areas",
     "expand_load_cases",
 ]
 
@@ -206,6 +207,37 @@ def _cut_length(geometry, s: float, s_index: int) -> float:
     t0, t1 = bounds[1 - s_index] - 1.0, bounds[3 - s_index] + 1.0
     ends = [(s, t0), (s, t1)] if s_index == 0 else [(t0, s), (t1, s)]
     return geometry.intersection(LineString(ends)).length
+
+
+#: Strips across the span used to spread the accidental torsion in the beam analogy.
+TORSION_STRIPS = 24
+
+
+def torsion_areas(plan: Plan, axis: str, direction: np.ndarray, torsion: float) -> tuple[tuple, ...]:
+    """The accidental torsional moment ``torsion`` (N·m about z, counter-clockwise +) as
+    area loads along ``direction`` (a load along ``axis``) for the beam analogy: the
+    diaphragm is cut into strips across the span, each loaded in proportion to its area
+    times the lever arm of its centroid from the diaphragm's centroid, so the net force is
+    zero and the moment exactly ``torsion`` (the area pattern that the semi-rigid model also
+    uses when the load is too concentrated to carry the moment itself). Returns
+    ((polygon, pressure N/m²), …)."""
+    s_index = 0 if axis == "y" else 1
+    lo, hi = plan.region.bounds[s_index], plan.region.bounds[s_index + 2]
+    t_lo, t_hi = plan.region.bounds[1 - s_index] - 1.0, plan.region.bounds[3 - s_index] + 1.0
+    edges = np.linspace(lo, hi, TORSION_STRIPS + 1)
+    strips = []
+    for a, b in zip(edges[:-1], edges[1:], strict=True):
+        band = shapely.box(a, t_lo, b, t_hi) if s_index == 0 else shapely.box(t_lo, a, t_hi, b)
+        strip = plan.region.intersection(band)
+        if strip.area > 0:
+            strips.append((strip, strip.area, strip.centroid.coords[0][s_index]))
+    area = np.array([a for _, a, _ in strips])
+    lever = np.array([c for _, _, c in strips])
+    lever = lever - (area @ lever) / area.sum()
+    # Moment of a force f along the direction at lever s: f·s·d_y (loads along y) or −f·s·d_x (along x).
+    arm = direction[1] if axis == "y" else -direction[0]
+    k = torsion / (arm * float(area @ lever**2))
+    return tuple((strip, k * c) for (strip, _, _), c in zip(strips, lever, strict=True))
 
 
 def _spread_lines(plan: Plan, lines, axis: str):

@@ -152,3 +152,21 @@ def test_accidental_torsion_never_reduces_a_wall(plan_from):
     assert envelope.walls["A"]["rigid"].value / KIP == pytest.approx(52.36, abs=0.005)
     assert envelope.walls["B"]["rigid"].value / KIP == pytest.approx(55.0, abs=0.005)
     assert envelope.walls["B"]["rigid"].case == "E+y+ecc"
+
+
+def test_accidental_torsion_closes_the_moment_diagram(plan_from):
+    """Statics: the ±ecc cases add the moment F·e to the walls, so it must also act on the
+    diaphragm in the beam analogy; then shear and moment vanish at both ends of the plan and
+    the chords carry nothing at the plan's corners. Without it the chord kept F·e/d at its
+    free end (the error this test guards against)."""
+    plan = plan_from(rectangle_plan(walls=end_walls()))
+    result = rigid_analysis(plan, expand_load_cases(plan))
+    for name, case in result.cases.items():
+        if "ecc" not in name:
+            continue
+        peak = max(abs(chord.peak) for chord in case.chords.values())
+        assert peak > 0
+        for chord in case.chords.values():
+            ends = chord.force[[0, -1]]
+            assert np.all(np.abs(ends) <= 1e-9 * peak), (name, chord.name, ends)
+        assert case.equilibrium_residual < 1e-9
