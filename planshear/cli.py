@@ -168,6 +168,8 @@ def _print_results(results: Results, out: Path) -> None:
                 ratio = "inf" if span["ratio"] is None else f"{span['ratio']:.2f}"
                 print(f"    governing span {span['span']} ({span['case']}): MDD {span['MDD']:.3f} {units['displacement']}, "
                       f"ADVE {span['ADVE']:.3f} {units['displacement']}, ratio {ratio}")
+            for note in check.get("notes", ()):
+                print(f"    note: {note}")
     methods = list(doc["assumptions"])
     envelope = doc.get("envelope") or {}
     print(f"\nwall forces ({force}): largest magnitude over all cases; design = envelope of allowed assumptions")

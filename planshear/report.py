@@ -444,7 +444,8 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
             f"Units: forces {doc['units']['force']}, positions {doc['units']['position']}, "
             f"displacements {doc['units']['displacement']}",
             "",
-            *[f"Load along {axis}: {check['verdict']}" for axis, check in classification["directions"].items()],
+            *[line for axis, check in classification["directions"].items()
+              for line in [f"Load along {axis}: {check['verdict']}"] + [w for n in check.get("notes", ()) for w in _wrap(f"  {n}", 110)]],
             *_not_run_lines(doc),
             "",
             *_wrap(CAUTION, 110),
@@ -507,7 +508,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
     plan = doc["plan"]
     area_key = next(k for k in plan if k.startswith("area_"))
     classification = doc.get("classification") or {"directions": {}}
-    verdicts = "".join(f"<li>load along {_esc(a)}: <b>{_esc(c['verdict'])}</b> (governing span {_esc(c['governing_span'])})</li>"
+    verdicts = "".join(f"<li>load along {_esc(a)}: <b>{_esc(c['verdict'])}</b> (governing span {_esc(c['governing_span'])})"
+                       + "".join(f"<br><small>{_esc(n)}</small>" for n in c.get("notes", ())) + "</li>"
                        for a, c in classification["directions"].items())
     if classification.get("calculated") is False:
         verdicts += (f"<li><b>not calculated</b>: {_esc(classification['reason'])}. "

@@ -7,7 +7,7 @@ import os
 import shutil
 import tempfile
 from collections.abc import Callable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -20,6 +20,7 @@ from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
 from .postprocess.envelope import Envelope, build_envelope, compare_walls
+from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
     classification_to_json,
@@ -195,6 +196,9 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     for factor, method in sensitivity.items():
         enveloped[f"semirigid@{factor:g}"] = method
     envelope = build_envelope(enveloped, cases, classification)
+    struts = strut_cautions(plan, methods)
+    if struts:
+        envelope = replace(envelope, cautions={**envelope.cautions, **struts})
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium)
 
 

@@ -163,6 +163,14 @@ def classify(plan: Plan, solution: Solution) -> Classification:
         lo, hi = plan.outline[:, s_index].min(), plan.outline[:, s_index].max()
         if supports and (supports[0][1] > lo + 1e-9 or supports[-1][1] < hi - 1e-9):
             notes.append("parts of the diaphragm beyond the end lines (cantilevers) are not classified")
+        from .beam_analogy import sections
+
+        partial = {}  # lines whose walls cover less than half the diaphragm on the line
+        for name, s_line, walls in supports:
+            present = float(sections(plan, plan.region, s_index, np.array([s_line]))[0][0])
+            walled = sum(w.length for w in walls)
+            if walled < 0.5 * present:
+                partial[name] = (s_line, walled, present)
         columns = [j for j, _ in base]
         directions_of = np.array([c.direction for _, c in base])  # (n_base, 2)
         along = np.einsum("ndc,cd->nc", solution.displacements.reshape(-1, 2, len(solution.cases))[:, :, columns],
@@ -196,5 +204,15 @@ def classify(plan: Plan, solution: Solution) -> Classification:
                     float(abs(local[n])), tuple(float(c) for c in mesh.nodes[nodes[n]]),
                     stations, relative[:, column].copy(),
                 ))
+        scale, unit = plan.length_scale, plan.length_unit
+        for name, (s_line, walled, present) in partial.items():
+            near = [sp for sp in spans if name in (sp.left_line, sp.right_line)
+                    and abs(sp.mdd_at[s_index] - s_line) <= 0.1 * abs(sp.stations[-1] - sp.stations[0])]
+            if near:
+                notes.append(
+                    f"line {name}: MDD lies near this line, whose walls cover {walled / scale:.4g} of the "
+                    f"{present / scale:.4g} {unit} of diaphragm on it: the diaphragm away from the walls deflects "
+                    "relative to their drift (a wing or an unsupported part of the line), and that is what the MDD "
+                    "measures here")
         directions[axis] = DirectionCheck(axis, tuple(spans), tuple(notes))
     return Classification(directions, plan.classification.idealized_flexible, plan.classification.idealized_rigid)

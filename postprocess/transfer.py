@@ -340,3 +340,36 @@ def transfer_peaks(extra: dict) -> tuple[list[tuple[str, float]], list[tuple[str
             else:
                 chords.append((f"{td.name} chord on {strut.label}", peak))
     return collectors, chords
+
+
+def strut_cautions(plan: Plan, methods: dict) -> dict[str, str]:
+    """Envelope cautions for the collectors that extend offset chords into transfer
+    regions (name as in :func:`transfer_peaks` → text) where the semi-rigid model has no
+    member along that strut: the idealized methods rely on it, the finite-element model
+    does not contain it, so its force has no semi-rigid value and the notch wing may be
+    modelled without its load path."""
+    if "semirigid" not in methods:
+        return {}
+    scale, unit = plan.length_scale, plan.length_unit
+    cautions: dict[str, str] = {}
+    for assumption in ("flexible", "rigid"):
+        for result in getattr(methods.get(assumption), "cases", {}).values():
+            for td in result.extra.get("transfer", ()):
+                s0, s1 = sorted(td.s_range)
+                tol = 1e-6 * max(abs(s1 - s0), 1.0)
+                for strut in td.struts:
+                    name = f"{td.name} collector on {strut.label}"
+                    if strut.role != "offset chord" or name in cautions:
+                        continue
+                    covered = strut.line is not None and any(
+                        m.line == strut.line and m.t_from <= s0 + tol and m.t_to >= s1 - tol for m in plan.members)
+                    if covered:
+                        continue
+                    where = f"line {strut.label}" if strut.line else f"the offset chord's line ({strut.label})"
+                    cautions[name] = (
+                        f"the flexible and rigid methods carry the interrupted chord force into transfer region "
+                        f"{td.name} through a collector along {where} from {s0 / scale:g} to {s1 / scale:g} {unit}; the "
+                        "semi-rigid model has no member there, so it models neither that load path nor a force for it. "
+                        f'Declare a [[member]] with role = "collector" on that line over that length (on a grid line) '
+                        "to model and design it")
+    return cautions

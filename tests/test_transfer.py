@@ -223,3 +223,20 @@ def test_unused_transfer_entry_is_said(plan_from):
     case = _case(plan_from(EXAMPLE_4_1 + '\n[[transfer]]\nat = "4"\nto = "5"\n'), "flexible")
     assert any("[[transfer]] TD 4-5" in note and "no chord force" in note for note in case.extra["notes"])
     assert set(_transfers(case)) == {"TD 2-1", "TD 3-4"}
+
+
+def test_a_transfer_strut_missing_from_the_finite_element_model_is_flagged(plan_from):
+    """The idealized methods carry the interrupted chord force through a collector along
+    line B into each transfer region; the semi-rigid model has that load path only if the
+    member exists. Without it the envelope gives the strut a caution; with a member declared
+    over the region (line B, 0–15 ft, and 35–50 ft) the caution goes."""
+    from planshear.run import analyze
+
+    coarse = EXAMPLE_4_1 + "\n[mesh]\nsize = 5.0\n"
+    bare = analyze(plan_from(coarse)).envelope.cautions
+    assert set(bare) >= {"TD 2-1 collector on B", "TD 3-4 collector on B"}
+    assert "line B from 0 to 15 ft" in bare["TD 2-1 collector on B"]
+    members = "".join(f'\n[[member]]\nrole = "collector"\nline = "B"\nEA = "4000 kip"\nfrom = {a}\nto = {b}\n'
+                      for a, b in ((0, 15), (35, 50)))
+    framed = analyze(plan_from(coarse.replace("[[load]]", members + "\n[[load]]", 1))).envelope.cautions
+    assert not any(name.startswith("TD ") for name in framed)
