@@ -79,7 +79,8 @@ def _case_from_analogy(
             if len(d.pieces) > 1 and stranded:
                 scale = plan.length_scale
                 where = ", ".join(
-                    f"{p.t_start / scale:.4g}–{p.t_end / scale:.4g} {plan.length_unit} ({p.residual / case.force:+.3g}·F)"
+                    f"{p.t_start / scale:.4g}–{p.t_end / scale:.4g} {plan.length_unit} "
+                    f"({100 * p.residual / case.force:+.3g} % of the case force)"
                     for p in stranded
                 )
                 notes.append(

@@ -345,9 +345,12 @@ def collector_notes(plan: Plan, layout: CollectorLayout | None) -> tuple[list[st
         return [], {}
     units = OutputUnits.for_plan(plan.length_unit)
 
-    def where(piece: WallPiece) -> str:
-        a, b = units.length_out(piece.t_from), units.length_out(piece.t_to)
-        return f"{piece.line} ({a:.4g}–{b:.4g} {units.length}, walls {', '.join(piece.walls)})"
+    def where(piece: WallPiece, kind: str | None = None) -> str:
+        """The piece, or only its segments of ``kind``, with its walls."""
+        spans = [(piece.t_from, piece.t_to)] if kind is None else [(g.t_from, g.t_to) for g in piece.segments
+                                                                    if g.kind == kind]
+        extent = ", ".join(f"{units.length_out(a):.4g}–{units.length_out(b):.4g}" for a, b in spans)
+        return f"{piece.line} ({extent} {units.length}, walls {', '.join(piece.walls)})"
 
     pieces = [{"line": p.line, "from": p.t_from, "to": p.t_to, "walls": p.walls, "collector": p.kind,
                "segments": [(s.kind, s.t_from, s.t_to, s.EA) for s in p.segments]} for p in layout.pieces]
@@ -359,14 +362,15 @@ def collector_notes(plan: Plan, layout: CollectorLayout | None) -> tuple[list[st
         source = ("[diaphragm] collector_EA" if layout.EA_source == "collector_EA"
                   else "chord_EA, the default of [diaphragm] collector_EA")
         notes.append(
-            "implied collectors on the wall pieces of lines " + "; ".join(where(p) for p in implied)
-            + f": no declared member covers them, so the model gives each the collector a drag strut would be, "
-            f"a bar of EA = {units.force_out(layout.EA):.6g} {units.force} (from {source}) over the whole piece; "
+            "implied collectors on the wall pieces of lines " + "; ".join(where(p, "implied") for p in implied)
+            + f": no declared member or outline chord covers them, so the model gives them the collector a drag strut "
+            f"would be, a bar of EA = {units.force_out(layout.EA):.6g} {units.force} (from {source}) over the rest of "
+            "the piece; "
             "their semi-rigid collector forces depend on this assumed EA"
         )
     if chord:
         notes.append("the outline chord bar is read as the collector of the wall pieces of lines "
-                     + "; ".join(where(p) for p in chord))
+                     + "; ".join(where(p, "chord") for p in chord))
     if bare:
         notes.append(
             "wall pieces without a collector: " + "; ".join(where(p) for p in bare)
