@@ -90,6 +90,14 @@ def plan_figure(doc: dict, plan) -> Figure:
         line = plan.line(member.line)
         a, b = line.point(member.t_from) * scale, line.point(member.t_to) * scale
         ax.plot([a[0], b[0]], [a[1], b[1]], color=MEMBER, lw=2.2, ls="--", zorder=4)
+    # Collectors the semi-rigid model implies on wall pieces without a declared member.
+    for piece in doc["assumptions"].get("semirigid", {}).get("wall_pieces", ()):
+        line = plan.line(piece["line"])
+        for segment in piece.get("segments", ()):
+            if segment["kind"] == "implied":
+                a = line.point(segment["from"] * plan.length_scale) * scale
+                b = line.point(segment["to"] * plan.length_scale) * scale
+                ax.plot([a[0], b[0]], [a[1], b[1]], color=MEMBER, lw=1.4, ls=":", zorder=4)
     for wall in plan.walls:
         a, b = wall.start * scale, wall.end * scale
         ax.plot([a[0], b[0]], [a[1], b[1]], color=WALL, lw=4.5, solid_capstyle="butt", zorder=5)
@@ -109,7 +117,8 @@ def plan_figure(doc: dict, plan) -> Figure:
     ax.set_aspect("equal")
     ax.set_xlabel(f"x ({plan.length_unit})", fontsize=8)
     ax.set_ylabel(f"y ({plan.length_unit})", fontsize=8)
-    ax.set_title("Plan: walls (red), collectors (green dashed), grid lines, openings, zones (hatched)", fontsize=9)
+    ax.set_title("Plan: walls (red), collectors (green dashed; dotted: implied in the semi-rigid model), grid lines, "
+                 "openings, zones (hatched)", fontsize=8)
     return fig
 
 
