@@ -192,6 +192,8 @@ def _print_results(results: Results, out: Path) -> None:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
                   f"×Ω0: {omega['value']:.2f}" + (f"   [{basis}]" if basis else "")
                   + ("   (!) no collector bar in the model" if "caution" in slots else ""))
+        elif "caution" in slots:  # e.g. a transfer strut that only the idealized methods have
+            print(f"  {name}: (!) {slots['caution']}")
     print(f"\nchord peaks ({force}, tension +)")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
