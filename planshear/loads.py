@@ -19,6 +19,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Polygon
 
+from .code.asce7_16 import fpx_12_10_1_1
 from .plan import Load, Plan
 
 __all__ = [
@@ -270,20 +271,12 @@ def _seismic_field(plan: Plan, load: Load, axis: str) -> ForceField:
 
 
 def fpx_force(wpx: float, SDS: float, Ie: float, ratio: float) -> tuple[float, str]:
-    """Diaphragm force Fpx (N) from ASCE 7-16 Eq. 12.10-1, bounded by Eq. 12.10-2
-    (≥ 0.2·SDS·Ie·wpx) and Eq. 12.10-3 (≤ 0.4·SDS·Ie·wpx).
-
-    ``ratio`` is ΣFi/Σwi of Eq. 12.10-1 for the levels at and above this one; ``wpx`` in N.
-    Returns the force and which equation governs.
-    """
-    raw = ratio * wpx
-    lower = 0.2 * SDS * Ie * wpx
-    upper = 0.4 * SDS * Ie * wpx
-    if raw < lower:
-        return lower, "lower bound, ASCE 7-16 Eq. 12.10-2"
-    if raw > upper:
-        return upper, "upper bound, ASCE 7-16 Eq. 12.10-3"
-    return raw, "ASCE 7-16 Eq. 12.10-1"
+    """Diaphragm force Fpx (N) of ASCE 7-16 §12.10.1.1 (see
+    :func:`planshear.code.asce7_16.fpx_12_10_1_1`) and the equation that governs."""
+    values = fpx_12_10_1_1(wpx, SDS, Ie, ratio)
+    label = {"12.10-1": "ASCE 7-16 Eq. 12.10-1", "12.10-2": "lower bound, ASCE 7-16 Eq. 12.10-2",
+             "12.10-3": "upper bound, ASCE 7-16 Eq. 12.10-3"}[values.governing]
+    return values.value, label
 
 
 def windward_segments(plan: Plan, axis: str, sign: int = 1) -> list[tuple[np.ndarray, np.ndarray, float]]:
