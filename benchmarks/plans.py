@@ -198,7 +198,7 @@ kind = "seismic"
 area_weight = "90 psf"
 line_weight = [{{ line = "D", weight = "0.4 kip/ft" }}]
 point_weight = [{{ at = [250, 30], weight = "20 kip" }}]
-fpx = {{ SDS = 1.0, Ie = 1.25, ratio = 0.3 }}
+fpx = {{ SDS = 1.0, Ie = 1.25, story_force_ratio = 0.3 }}
 directions = ["x", "y"]
 collector_overstrength = 2.5
 [mesh]

@@ -134,6 +134,11 @@ def _print_check(summary: dict) -> None:
             cm = ", ".join(f"{c:.4g}" for c in load["center_of_mass"])
             line += f" weight {load['seismic_weight']:.5g} {force}, center of mass ({cm}) {length},"
         line += " force " + ", ".join(f"{axis}: {f:.5g} {force}" for axis, f in load["force"].items())
+        if load.get("fpx_equation"):
+            values = ", ".join(f"Eq. {eq} {v:.5g}" for eq, v in load["fpx_values"].items())
+            line += f"; Fpx by ASCE 7-16 Eq. {load['fpx_equation']} ({values} {force})"
+        elif load["kind"] == "seismic":
+            line += " (total given in the plan)"
         print(line)
     print(f"  load cases: {', '.join(summary['cases'])}")
 

@@ -186,7 +186,7 @@ class Load:
     point_weights: tuple[tuple[float, float, float], ...] = ()  # (x, y, N)
     point_footprints: tuple[Polygon, ...] = ()  # where each point weight acts (m), on the diaphragm
     total: float | None = None
-    fpx: tuple[float, float, float] | None = None  # (SDS, Ie, ratio)
+    fpx: tuple[float, float, float] | None = None  # (SDS, Ie, story_force_ratio = ΣFi/Σwi)
     intensity: float = 0.0  # N/m per unit of plan width, edge loads: on the windward faces
     leeward: float = 0.0  # N/m per unit of plan width, edge loads: on the leeward faces
     eccentricity: float = 0.05
@@ -849,13 +849,23 @@ class _PlanBuilder:
                 footprints.append(shapely.set_precision(acting, 0.0))
             has_total, has_fpx = "total" in entry, "fpx" in entry
             if has_total == has_fpx:
-                self.problem(where, 'give exactly one of "total" (the diaphragm force) or "fpx" = { SDS, Ie, ratio } (ASCE 7-16 Eq. 12.10-1)')
+                self.problem(where, 'give exactly one of "total" (the diaphragm force) or "fpx" = { SDS, Ie, story_force_ratio } '
+                             '(ASCE 7-16 Eq. 12.10-1)')
                 continue
             total = self.quantity(entry["total"], FORCE, where + ".total") if has_total else None
             fpx = None
             if has_fpx:
                 raw_fpx = entry["fpx"]
-                values = [self.number(float(raw_fpx[k]), f"{where}.fpx.{k}", positive=True, allow_zero=False) for k in ("SDS", "Ie", "ratio")]
+                if "ratio" in raw_fpx:
+                    self.problem(where + ".fpx.ratio", "was renamed story_force_ratio (ΣFi/Σwi for the levels at and above "
+                                 f"this one, ASCE 7-16 Eq. 12.10-1): write story_force_ratio = {raw_fpx['ratio']:g}")
+                    continue
+                if "story_force_ratio" not in raw_fpx:
+                    self.problem(where + ".fpx", 'needs "story_force_ratio" (ΣFi/Σwi for the levels at and above this one, '
+                                 "ASCE 7-16 Eq. 12.10-1), e.g. story_force_ratio = 0.15")
+                    continue
+                values = [self.number(float(raw_fpx[k]), f"{where}.fpx.{k}", positive=True, allow_zero=False)
+                          for k in ("SDS", "Ie", "story_force_ratio")]
                 if any(v is None for v in values):
                     continue
                 fpx = tuple(values)

@@ -131,6 +131,13 @@ def _table(headers: list[str], rows: list[list], cls: str = "") -> str:
     return f'<table class="{cls}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>'
 
 
+def _force_source(load: dict) -> str:
+    """Where a load's force came from: the governing Fpx equation, a given total, or wind."""
+    if load.get("fpx_equation"):
+        return f"Fpx, ASCE 7-16 Eq. {load['fpx_equation']} governs"
+    return "total given" if load["kind"] == "seismic" else "wind intensity × plan width"
+
+
 def _at(point) -> str:
     """A plan position as "(x, y)" for a table cell."""
     return "" if not point else f"({point[0]:.4g}, {point[1]:.4g})"
@@ -170,9 +177,12 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
          for c in plan["case_details"]],
     )
     tables["loads"] = (
-        ["load", "kind", "directions", f"seismic weight ({f})", f"force x ({f})", f"force y ({f})", "Ω0"],
+        ["load", "kind", "directions", f"seismic weight ({f})", f"force x ({f})", f"force y ({f})", "Ω0",
+         "force from", f"Eq. 12.10-1 ({f})", f"Eq. 12.10-2, lower ({f})", f"Eq. 12.10-3, upper ({f})"],
         [[n, ld["kind"], ", ".join(ld["directions"]), ld.get("seismic_weight"), ld["force"].get("x"),
-          ld["force"].get("y"), ld["collector_overstrength"]] for n, ld in plan["loads"].items()],
+          ld["force"].get("y"), ld["collector_overstrength"], _force_source(ld),
+          *[(ld.get("fpx_values") or {}).get(eq) for eq in ("12.10-1", "12.10-2", "12.10-3")]]
+         for n, ld in plan["loads"].items()],
     )
     classification = doc.get("classification") or {"directions": {}}
     rows = []

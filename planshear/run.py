@@ -13,6 +13,7 @@ from pathlib import Path
 import numpy as np
 
 from .caution import CAUTION
+from .code.asce7_16 import fpx_12_10_1_1
 from .errors import AnalysisError, EquilibriumError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
@@ -332,6 +333,16 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
             weight = seismic_weight(plan, load)
             entry["seismic_weight"] = round(units.force_out(weight.total), 6)
             entry["center_of_mass"] = [round(units.length_out(c), 6) for c in weight.center]
+            if load.fpx is not None:
+                values = fpx_12_10_1_1(weight.total, *load.fpx)
+                entry["fpx_clause"] = "ASCE 7-16 §12.10.1.1"
+                entry["fpx_equation"] = values.governing
+                entry["fpx_values"] = {eq: round(units.force_out(v), 6) for eq, v in
+                                       (("12.10-1", values.eq_12_10_1), ("12.10-2", values.eq_12_10_2),
+                                        ("12.10-3", values.eq_12_10_3))}
+            else:
+                entry["fpx_equation"] = None
+                entry["force_source"] = "total given in the plan (not Fpx from ASCE 7-16 §12.10.1.1)"
         forces = {c.axis: c.force for c in cases if c.load == load.name}
         entry["force"] = {axis: round(units.force_out(f), 6) for axis, f in forces.items()}
         entry["collector_overstrength"] = load.collector_overstrength

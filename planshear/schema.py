@@ -189,8 +189,10 @@ PLAN_SCHEMA: dict = {
                     "total": QUANTITY,
                     "fpx": {
                         "type": "object",
-                        "required": ["SDS", "Ie", "ratio"],
-                        "properties": {"SDS": NUMBER, "Ie": NUMBER, "ratio": NUMBER},
+                        "required": ["SDS", "Ie"],
+                        # "ratio" is the old name of story_force_ratio: accepted here so that
+                        # plan.py can give the rename as the fix.
+                        "properties": {"SDS": NUMBER, "Ie": NUMBER, "story_force_ratio": NUMBER, "ratio": NUMBER},
                         "additionalProperties": False,
                     },
                     "intensity": QUANTITY,

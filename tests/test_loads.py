@@ -174,3 +174,37 @@ def test_wind_from_the_other_side_loads_the_other_edges(plan_from):
     assert bands == [(0.0, 50.0, 100.0, 0.3), (50.0, 80.0, 60.0, 0.3)]
     assert not case.field.lines
     assert case.center[1] / FT == pytest.approx((50 * 25 + 30 * 65) / 80)
+
+
+@pytest.mark.parametrize(
+    ("story_force_ratio", "equation", "fpx"),
+    [
+        # Taly (2010) Table E7.10, level 1: ΣFi/Σwi = 286.3/2600, raw 71.6 k < 0.2·0.6·650 = 78.0 k.
+        (286.3 / 2600.0, "12.10-2", 78.0),
+        # Same wpx with level 4's ratio (80.1 + 72.1)/(400 + 450): 116.4 k, between the bounds.
+        ((80.1 + 72.1) / 850.0, "12.10-1", 650.0 * 152.2 / 850.0),
+    ],
+)
+def test_fpx_equation_and_values_are_reported(plan_from, story_force_ratio, equation, fpx):
+    """ASCE 7-16 §12.10.1.1: results.json (and `check`) name the governing equation and give
+    all three values: 12.10-1 (ΣFi/Σwi)·wpx, 12.10-2 = 0.2·SDS·Ie·wpx, 12.10-3 =
+    0.4·SDS·Ie·wpx. wpx = 650 kip (100 × 65 ft at 100 psf), SDS = 0.6, Ie = 1.0 (Taly 2010,
+    Table E7.10 inputs)."""
+    from planshear.run import analyze
+
+    load = textwrap.dedent(f'''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "100 psf"
+        fpx = {{ SDS = 0.6, Ie = 1.0, story_force_ratio = {story_force_ratio!r} }}
+        directions = ["y"]
+        ''')
+    plan = plan_from(rectangle_plan(length=100, depth=65, walls=end_walls(100, 65), load=load))
+    entry = analyze(plan, semirigid=False).to_json()["plan"]["loads"]["E"]
+    assert entry["fpx_equation"] == equation
+    values = entry["fpx_values"]
+    assert values["12.10-2"] == pytest.approx(0.2 * 0.6 * 650.0, rel=1e-6)
+    assert values["12.10-3"] == pytest.approx(0.4 * 0.6 * 650.0, rel=1e-6)
+    assert values["12.10-1"] == pytest.approx(story_force_ratio * 650.0, rel=1e-6)
+    assert entry["force"]["y"] == pytest.approx(fpx, abs=0.05)
