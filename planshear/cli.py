@@ -188,14 +188,17 @@ def _print_results(results: Results, out: Path) -> None:
         design = envelope.get("walls", {}).get(wall, {}).get("design")
         tail = f"{design['value']:11.2f}  {design['assumption']} {design['case']}" if design else ""
         print("  " + wall.ljust(8) + "".join(cells) + tail)
-    print(f"\ncollector peaks ({force}): design envelope and with overstrength Ω0 (seismic cases); "
-          "[collector in the semi-rigid model: declared member, outline chord, implied, none]")
+    print(f"\ncollector peaks ({force}): design envelope, and with overstrength per ASCE 7-16 §12.10.2.1 (Ω0 with "
+          "the Exception 1 cap at Eq. 12.10-3; seismic cases); [collector in the semi-rigid model: declared member, "
+          "outline chord, implied, none]")
     for name, slots in envelope.get("collectors", {}).items():
         design, omega = slots.get("design"), slots.get("with_overstrength")
         if design:
             basis = slots.get("collector_in_model")
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
-                  f"×Ω0: {omega['value']:.2f}" + (f"   [{basis}]" if basis else "")
+                  f"§12.10.2.1: {omega['value']:.2f}"
+                  + (" (cap)" if "Exception 1" in (slots.get("overstrength") or {}).get("governs", "") else "")
+                  + (f"   [{basis}]" if basis else "")
                   + ("   (!) no collector bar in the model" if "caution" in slots else ""))
         elif "caution" in slots:  # e.g. a transfer strut that only the idealized methods have
             print(f"  {name}: (!) {slots['caution']}")

@@ -19,7 +19,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Polygon
 
-from .code.asce7_16 import fpx_12_10_1_1
+from .code.asce7_16 import CollectorRule, collector_rule_12_10_2_1, fpx_12_10_1_1
 from .plan import Load, Plan
 
 __all__ = [
@@ -107,6 +107,8 @@ class LoadCase:
     torsion: float  # N·m about z from the accidental eccentricity (counter-clockwise +)
     collector_overstrength: float
     assumptions: tuple[str, ...]  # which methods use the case
+    #: ASCE 7-16 §12.10.2.1: design collector force = rule.factor × force at this case's force.
+    collector_rule: CollectorRule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
 
     @property
     def direction(self) -> np.ndarray:
@@ -337,14 +339,14 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
     for load in plan.loads:
         if load.kind == "seismic":
             weight = seismic_weight(plan, load)
-            if load.fpx is not None:
-                force, _ = fpx_force(weight.total, *load.fpx)
-            else:
-                force = float(load.total)
+            fpx = fpx_12_10_1_1(weight.total, *load.fpx) if load.fpx is not None else None
+            force = fpx.value if fpx is not None else float(load.total)
+            rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame)
             base_total = weight.total
             center = weight.center
         else:
             base_total, force, center = 0.0, 0.0, None
+            rule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
         for axis in load.directions:
             if load.kind == "seismic":
                 # A seismic field reverses exactly, so only +axis is analyzed.
@@ -367,7 +369,7 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                 label = f"{load.name}{'+' if sign > 0 else '-'}{axis}"
                 cases.append(
                     LoadCase(label, load.name, load.kind, axis, sign, 0, case_force, field, case_center,
-                             0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"))
+                             0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"), rule)
                 )
                 if eccentricity <= 0:
                     continue
@@ -379,6 +381,6 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                     cases.append(
                         LoadCase(f"{label}{'+' if ecc_sign > 0 else '-'}ecc", load.name, load.kind, axis, sign,
                                  ecc_sign, case_force, field, case_center, eccentricity, torsion,
-                                 load.collector_overstrength, ("rigid", "semirigid"))
+                                 load.collector_overstrength, ("rigid", "semirigid"), rule)
                     )
     return cases

@@ -191,6 +191,7 @@ class Load:
     leeward: float = 0.0  # N/m per unit of plan width, edge loads: on the leeward faces
     eccentricity: float = 0.05
     collector_overstrength: float = 1.0
+    light_frame: bool = False  # braced entirely by light-frame shear walls (ASCE 7-16 §12.10.2.1 Exception 2)
 
 
 @dataclass(frozen=True)
@@ -775,7 +776,7 @@ class _PlanBuilder:
             if ecc is not None and ecc > 0.5:
                 self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
                 ecc = None
-            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx"}
+            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame"}
             if kind == "edge":
                 misplaced = sorted(seismic_keys & set(entry))
                 if misplaced:
@@ -878,7 +879,7 @@ class _PlanBuilder:
                 Load(load_name, kind, directions, area_weight=area_weight, zone_area_weight=zone_weights,
                      line_weights=tuple(line_weights), point_weights=tuple(point_weights),
                      point_footprints=tuple(footprints), total=total, fpx=fpx,
-                     eccentricity=ecc, collector_overstrength=omega)
+                     eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)))
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')

@@ -209,10 +209,13 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     headers += [f"design ({f})", "governs"]
     tables["walls"] = (headers, rows)
     tables["collectors"] = (
-        ["line", f"design peak ({f})", "governs", f"with Ω0 ({f})", f"largest of all assumptions ({f})",
-         "collector in the semi-rigid model", "caution"],
+        ["line", f"design peak ({f})", "governs", f"with Ω0 per ASCE 7-16 §12.10.2.1 ({f})", "§12.10.2.1 governs",
+         f"Ω0 force before the cap ({f})", f"largest of all assumptions ({f})", "collector in the semi-rigid model",
+         "caution"],
         [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
-          s["with_overstrength"] and s["with_overstrength"]["value"], s["information"] and s["information"]["value"],
+          s["with_overstrength"] and s["with_overstrength"]["value"],
+          (s.get("overstrength") or {}).get("governs", ""), (s.get("overstrength") or {}).get("without_cap"),
+          s["information"] and s["information"]["value"],
           s.get("collector_in_model", ""), "no collector bar in the model" if "caution" in s else ""]
          for n, s in envelope["collectors"].items()],
     )

@@ -345,6 +345,15 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
     for name, kind in envelope.collector_basis.items():
         collectors.setdefault(name, {})["collector_in_model"] = kind
         lines.setdefault(name, {})["collector_in_model"] = kind
+    for name, rule in envelope.collector_rules.items():
+        collectors.setdefault(name, {})["overstrength"] = {
+            "clause": rule["clause"], "governs": rule["governs"], "factor": _r(rule["factor"], 4),
+            "value": collectors[name]["with_overstrength"]["value"] if collectors[name].get("with_overstrength") else None,
+            "without_cap": _r(units.force_out(rule["without_cap"])),
+            "cap": None if rule["cap"] is None else _r(units.force_out(rule["cap"])),
+            **({"note": rule["note"]} if rule["note"] else {}),
+        }
+        lines.setdefault(name, {})["collector_overstrength_governs"] = rule["governs"]
     for name, text in envelope.cautions.items():
         collectors.setdefault(name, {})["caution"] = text
         lines.setdefault(name, {})["caution"] = text

@@ -200,6 +200,7 @@ PLAN_SCHEMA: dict = {
                     "leeward": QUANTITY,
                     "eccentricity": NUMBER,
                     "collector_overstrength": NUMBER,
+                    "light_frame": {"type": "boolean"},
                 },
                 "additionalProperties": False,
             },

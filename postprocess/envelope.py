@@ -39,6 +39,9 @@ class Envelope:
     # line → the collector of its wall pieces in the semi-rigid model ("declared", "chord",
     # "implied", "none" or combinations such as "declared+implied")
     collector_basis: dict[str, str] = field(default_factory=dict)
+    # collector → how ASCE 7-16 §12.10.2.1 set its design force ("with_overstrength"): factor on the
+    # governing case's force, the value without the Exception 1 cap, the cap, which governed (N)
+    collector_rules: dict[str, dict] = field(default_factory=dict)
 
 
 def _allowed(classification: Classification | None, methods: dict[str, MethodResult]) -> dict[str, tuple[str, ...]]:
@@ -76,7 +79,8 @@ def build_envelope(
         for case_name, result in method.cases.items():
             case = by_name[case_name]
             design = assumption in allowed[case.axis]
-            omega = case.collector_overstrength if case.kind == "seismic" else 1.0
+            # ASCE 7-16 §12.10.2.1 (overstrength, its cap and exceptions) as a factor on the case's force.
+            omega = case.collector_rule.factor
             for wall_id, force in result.wall_forces.items():
                 slot = walls.setdefault(wall_id, {"design": None, "information": None})
                 slot["information"] = _better(slot["information"], force, assumption, case_name)
@@ -127,7 +131,17 @@ def build_envelope(
         for name, ids in sorted(bare.items())
     }
     collector_basis = {name: "+".join(kinds) for name, kinds in sorted(basis.items())}
-    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis)
+    rules = {}
+    for name, slots in collectors.items():
+        governing = slots.get("with_overstrength")
+        if governing is None:
+            continue
+        rule = by_name[governing.case].collector_rule
+        at_case = governing.value / rule.factor  # the collector force at that case's own force
+        rules[name] = {"clause": "ASCE 7-16 §12.10.2.1", "governs": rule.governs, "factor": rule.factor,
+                       "without_cap": at_case * rule.uncapped,
+                       "cap": None if rule.cap is None else at_case * rule.cap, "note": rule.note}
+    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis, rules)
 
 
 def compare_walls(methods: dict[str, MethodResult]) -> dict[str, dict[str, dict[str, float | None]]]:
