@@ -208,6 +208,14 @@ def _print_results(results: Results, out: Path) -> None:
         if design:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     _print_walls_along_chords(doc)
+    chosen = doc.get("engineer_envelope")
+    if chosen:
+        print(f"\n{chosen['label']} ({force})")
+        for group in ("walls", "collectors", "chords"):
+            cells = [f"{name} {slots['design']['value']:.2f} ({slots['design']['assumption']} {slots['design']['case']})"
+                     for name, slots in chosen.get(group, {}).items() if slots.get("design")]
+            if cells:
+                print(f"  {group}: " + "; ".join(cells))
     print(f"\nresults written to {out}/")
     print(CAUTION)
 

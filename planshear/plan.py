@@ -229,6 +229,7 @@ class Plan:
     loads: tuple[Load, ...]
     mesh: MeshSettings
     classification: ClassificationFlags
+    design_envelope: tuple[str, ...] = ()  # [design] envelope: assumptions of an engineer-chosen envelope
     collector_EA: float | None = None  # N, [diaphragm] collector_EA as written (None if absent)
 
     @property
@@ -460,6 +461,7 @@ class _PlanBuilder:
         transfers = self.transfers(doc.get("transfer", []), lines_by_name)
         mesh = self.mesh_settings(doc.get("mesh", {}), size)
         classification = self.classification(doc.get("classification", {}))
+        chosen = self.design_envelope(doc.get("design", {}))
         if self.problems:
             raise PlanError(self.problems)
         outline_xy = np.asarray(outline.exterior.coords)[:-1]
@@ -481,6 +483,7 @@ class _PlanBuilder:
             classification=classification,
             collector_EA=collector_EA,
             transfers=tuple(transfers),
+            design_envelope=chosen,
         )
         check_stability(plan)
         return plan
@@ -917,6 +920,16 @@ class _PlanBuilder:
                 f"freedom and need about {need / 2**30:.3g} GB of memory (this machine has {available / 2**30:.3g} GB); "
                 f"coarsen the mesh: use mesh.size of at least {coarsest / self.scale:.3g} {self.unit}",
             )
+
+    def design_envelope(self, raw: dict) -> tuple[str, ...]:
+        """[design] envelope: the assumptions of an engineer-chosen envelope, reported beside
+        the code-allowed one (e.g. ["flexible", "rigid"], common practice where either is allowed)."""
+        chosen = tuple(raw.get("envelope", ()))
+        unknown = [a for a in chosen if a not in ("flexible", "rigid", "semirigid")]
+        if unknown or ("envelope" in raw and not chosen) or len(set(chosen)) != len(chosen):
+            self.problem("design.envelope", f'list some of "flexible", "rigid", "semirigid" once each, got {list(chosen)}')
+            return ()
+        return chosen
 
     def classification(self, raw: dict) -> ClassificationFlags:
         factors = tuple(float(f) for f in raw.get("sensitivity", ()))

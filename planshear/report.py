@@ -219,6 +219,13 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
           s.get("collector_in_model", ""), "no collector bar in the model" if "caution" in s else ""]
          for n, s in envelope["collectors"].items()],
     )
+    chosen = doc.get("engineer_envelope") or {}
+    tables["engineer_envelope"] = (
+        ["kind", "name", f"design ({f})", "governs"],
+        [[group[:-1], name, slots["design"]["value"], f"{slots['design']['assumption']} {slots['design']['case']}"]
+         for group in ("walls", "collectors", "chords") for name, slots in chosen.get(group, {}).items()
+         if slots.get("design")],
+    )
     tables["chords"] = (
         ["edge", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
         [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
@@ -468,12 +475,15 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("cases", "Load cases"),
                            ("classification", "Flexibility check"), ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
+                           ("engineer_envelope", "Engineer-chosen envelope (not the code check)"),
                            ("chord_walls", "Walls along chord lines: chord force against M/d"),
                            ("walls_across", "Walls across the load: force from chord elongation"),
                            ("transfer", "Transfer diaphragms"), ("net_shears", "Net shears in transfer regions"),
                            ("case_notes", "Notes per case"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
+            if key == "engineer_envelope" and not rows:
+                continue
             sections.append((title, _plain_rows(headers, rows)))
         _text_pages(pdf, sections)
         figures = _figures(doc, results, folder, pdf)
@@ -551,6 +561,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),
         section("Collectors", tab("collectors") + figs(figures["collectors"])),
         section("Chords", tab("chords") + figs(figures["chords"])),
+        section("Engineer-chosen envelope", f"<p>{_esc(doc['engineer_envelope']['label'])}</p>" + tab("engineer_envelope"))
+        if doc.get("engineer_envelope") else "",
         section("Walls along chord lines", f"<p>{_esc(CHORD_WALLS_TEXT)}</p>" + tab("chord_walls") + tab("walls_across")),
         section("Transfer diaphragms (flexible and rigid methods)", _TRANSFER_INTRO + tab("transfer") + tab("net_shears")),
         section("Notes per case", tab("case_notes")),

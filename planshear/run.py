@@ -55,6 +55,7 @@ class Results:
     sensitivity: dict[float, MethodResult] = field(default_factory=dict)
     envelope: Envelope | None = None
     equilibrium: dict[str, float] = field(default_factory=dict)  # assumption → largest imbalance
+    engineer_envelope: Envelope | None = None  # over the assumptions of [design] envelope
 
     @property
     def units(self) -> OutputUnits:
@@ -79,6 +80,12 @@ class Results:
                                else self._classification_not_calculated()),
             "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
             "envelope": envelope_to_json(self.envelope, units),
+            "engineer_envelope": None if self.engineer_envelope is None else {
+                "label": "engineer-chosen envelope over " + " + ".join(self.plan.design_envelope)
+                         + " ([design] envelope); not the code's allowed assumptions, see envelope",
+                "assumptions": list(self.plan.design_envelope),
+                **envelope_to_json(self.engineer_envelope, units),
+            },
             "comparison": comparison_to_json(compare_walls(self.methods), units),
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "
@@ -200,7 +207,11 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     struts = strut_cautions(plan, methods)
     if struts:
         envelope = replace(envelope, cautions={**envelope.cautions, **struts})
-    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium)
+    engineer = None
+    if plan.design_envelope:
+        engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
+    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
+                   engineer)
 
 
 def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:

@@ -227,6 +227,11 @@ PLAN_SCHEMA: dict = {
             },
             "additionalProperties": False,
         },
+        "design": {
+            "type": "object",
+            "properties": {"envelope": {"type": "array", "items": {"type": "string"}}},
+            "additionalProperties": False,
+        },
         "classification": {
             "type": "object",
             "properties": {

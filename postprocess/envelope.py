@@ -4,8 +4,10 @@ The envelope of a quantity is its largest magnitude over the assumptions the cod
 (see :mod:`planshear.postprocess.classify`) and over every case, with the assumption and
 case that govern. Values under assumptions that are not allowed are kept as information.
 Because every base case is enveloped together with its ±ecc cases, accidental torsion
-never reduces a design force. Collector forces of seismic cases are also given multiplied
-by the load's collector overstrength Ω0, separately.
+never reduces a design force. Collector forces of seismic cases are also given with the
+overstrength of ASCE 7-16 §12.10.2.1, separately. Chords and collectors also get their
+largest tension and largest compression with the cases that govern them; ties go to the
+base case and the simpler assumption.
 """
 
 from __future__ import annotations
@@ -59,22 +61,65 @@ def _allowed(classification: Classification | None, methods: dict[str, MethodRes
     return result
 
 
-def _better(current: Governing | None, value: float, assumption: str, case: str) -> Governing:
-    if current is None or abs(value) > abs(current.value):
+#: Relative difference below which two values are a tie (round-off between assumptions).
+TIE = 1e-6
+#: Simpler assumptions first: a tie goes to the earlier one (and to a base case before a ±ecc case).
+SIMPLICITY = ("flexible", "rigid", "semirigid")
+
+
+def _rank(assumption: str, case: LoadCase | None) -> tuple[int, int]:
+    simplicity = SIMPLICITY.index(assumption) if assumption in SIMPLICITY else len(SIMPLICITY)
+    return (0 if case is None or case.eccentricity_sign == 0 else 1, simplicity)
+
+
+def _better(current: Governing | None, value: float, assumption: str, case: str,
+            cases: dict[str, LoadCase] | None = None, sign: float = 0.0) -> Governing | None:
+    """The governing value after seeing ``value``: the larger magnitude (``sign`` 0), or the
+    larger ``sign``·value among values of that sign (+1 tension, −1 compression). Ties within
+    :data:`TIE` go to the base case and the simpler assumption, not to round-off."""
+    measure = (lambda v: abs(v)) if sign == 0 else (lambda v: sign * v)
+    if measure(value) <= 0 and sign != 0:
+        return current
+    if current is None:
         return Governing(value, assumption, case)
+    new, old = measure(value), measure(current.value)
+    if new > old * (1 + TIE) + 1e-300:
+        return Governing(value, assumption, case)
+    if new >= old * (1 - TIE) and cases is not None:
+        if _rank(assumption, cases.get(case)) < _rank(current.assumption, cases.get(current.case)):
+            return Governing(value, assumption, case)
     return current
 
 
 def build_envelope(
-    methods: dict[str, MethodResult], cases: list[LoadCase] | tuple[LoadCase, ...], classification: Classification | None
+    methods: dict[str, MethodResult], cases: list[LoadCase] | tuple[LoadCase, ...], classification: Classification | None,
+    chosen: tuple[str, ...] | None = None,
 ) -> Envelope:
-    """Envelope over allowed assumptions and all cases (see module docstring)."""
+    """Envelope over allowed assumptions and all cases (see module docstring). ``chosen``
+    replaces the code-allowed assumptions by the engineer's (the sensitivity runs of the
+    semi-rigid model join "semirigid")."""
     allowed = _allowed(classification, methods)
+    if chosen is not None:
+        picked = tuple(m for m in methods if m.split("@")[0] in chosen)
+        allowed = {axis: picked for axis in allowed}
     by_name = {c.name: c for c in cases}
     walls: dict[str, dict[str, Governing | None]] = {}
     reactions: dict[str, dict[str, Governing | None]] = {}
     collectors: dict[str, dict[str, Governing | None]] = {}
     chords: dict[str, dict[str, Governing | None]] = {}
+    def better(current, value, assumption, case_name, sign=0.0):
+        return _better(current, value, assumption, case_name, by_name, sign)
+
+    def extremes(slot: dict, values, assumption: str, case_name: str, prefix: str = "", factor: float = 1.0) -> None:
+        """Largest tension and compression of a diagram (N) into slot[prefix + "tension"|"compression"]."""
+        if len(values) == 0:
+            return
+        top, bottom = float(max(values)), float(min(values))
+        if by_name[case_name].kind == "seismic":  # only +axis is analyzed: the −axis case is its negative
+            top, bottom = max(top, -bottom), min(bottom, -top)
+        slot[prefix + "tension"] = better(slot.get(prefix + "tension"), factor * top, assumption, case_name, 1.0)
+        slot[prefix + "compression"] = better(slot.get(prefix + "compression"), factor * bottom, assumption, case_name, -1.0)
+
     for assumption, method in methods.items():
         for case_name, result in method.cases.items():
             case = by_name[case_name]
@@ -83,34 +128,40 @@ def build_envelope(
             omega = case.collector_rule.factor
             for wall_id, force in result.wall_forces.items():
                 slot = walls.setdefault(wall_id, {"design": None, "information": None})
-                slot["information"] = _better(slot["information"], force, assumption, case_name)
-                slot[assumption] = _better(slot.get(assumption), force, assumption, case_name)
+                slot["information"] = better(slot["information"], force, assumption, case_name)
+                slot[assumption] = better(slot.get(assumption), force, assumption, case_name)
                 if design:
-                    slot["design"] = _better(slot["design"], force, assumption, case_name)
+                    slot["design"] = better(slot["design"], force, assumption, case_name)
             for name, line in result.lines.items():
                 r = reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
-                r["information"] = _better(r["information"], line.reaction, assumption, case_name)
-                c["information"] = _better(c["information"], line.peak, assumption, case_name)
+                r["information"] = better(r["information"], line.reaction, assumption, case_name)
+                c["information"] = better(c["information"], line.peak, assumption, case_name)
                 if design:
-                    r["design"] = _better(r["design"], line.reaction, assumption, case_name)
-                    c["design"] = _better(c["design"], line.peak, assumption, case_name)
-                    c["with_overstrength"] = _better(c["with_overstrength"], omega * line.peak, assumption, case_name)
+                    r["design"] = better(r["design"], line.reaction, assumption, case_name)
+                    c["design"] = better(c["design"], line.peak, assumption, case_name)
+                    c["with_overstrength"] = better(c["with_overstrength"], omega * line.peak, assumption, case_name)
+                    extremes(c, line.collector, assumption, case_name)
+                    extremes(c, line.collector, assumption, case_name, "with_overstrength_", omega)
             # Transfer diaphragms (flexible, rigid): their collectors and chords are enveloped too.
             extra_collectors, extra_chords = transfer_peaks(result.extra)
             for name, peak in extra_collectors:
                 reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
-                c["information"] = _better(c["information"], peak, assumption, case_name)
+                c["information"] = better(c["information"], peak, assumption, case_name)
                 if design:
-                    c["design"] = _better(c["design"], peak, assumption, case_name)
-                    c["with_overstrength"] = _better(c["with_overstrength"], omega * peak, assumption, case_name)
-            peaks = [(name, chord.peak) for name, chord in result.chords.items()] + extra_chords
-            for name, peak in peaks:
+                    c["design"] = better(c["design"], peak, assumption, case_name)
+                    c["with_overstrength"] = better(c["with_overstrength"], omega * peak, assumption, case_name)
+                    extremes(c, [peak], assumption, case_name)
+                    extremes(c, [peak], assumption, case_name, "with_overstrength_", omega)
+            diagrams = [(name, chord.peak, chord.force) for name, chord in result.chords.items()]
+            diagrams += [(name, peak, [peak]) for name, peak in extra_chords]
+            for name, peak, values in diagrams:
                 slot = chords.setdefault(name, {"design": None, "information": None})
-                slot["information"] = _better(slot["information"], peak, assumption, case_name)
+                slot["information"] = better(slot["information"], peak, assumption, case_name)
                 if design:
-                    slot["design"] = _better(slot["design"], peak, assumption, case_name)
+                    slot["design"] = better(slot["design"], peak, assumption, case_name)
+                    extremes(slot, values, assumption, case_name)
     # The semi-rigid model lists its wall pieces with their collector (see fem/collectors.py);
     # a piece with no bar at all gets a caution naming its walls.
     bare: dict[str, list[str]] = {}

@@ -140,3 +140,59 @@ def test_line_with_walls_but_no_collector_is_flagged(plan_from):
     assert "M" in result.envelope.cautions
     assert any("without a collector" in note for note in result.methods["semirigid"].notes)
     assert "caution" in result.to_json()["envelope"]["collectors"]["M"]
+
+
+def test_chords_and_collectors_get_tension_and_compression(plan_from):
+    """Statics of a simple span (Taly 2010, Eqs. 4.130–4.133): W = 20 kip uniform over
+    L = 100 ft, d = 50 ft: M = WL/8 = 250 kip·ft, chord force M/d = 5.0 kip. A seismic load
+    reverses, so each chord edge is designed for +5 kip tension and −5 kip compression
+    (flexible method, stated idealized flexible)."""
+    walls = (wall("W1", "1", 0, 50, "50 kip/in") + wall("W2", "2", 0, 50, "50 kip/in")
+             + wall("WA", "A", 40, 60, "50 kip/in") + wall("WB", "B", 40, 60, "50 kip/in"))
+    plan = plan_from(box(walls=walls, extra="[classification]\nidealized_flexible = true\n"))
+    env = analyze(plan, semirigid=False).envelope
+    for name in ("edge 1", "edge 3"):
+        slots = env.chords[name]
+        assert slots["tension"].value / KIP == pytest.approx(5.0, rel=1e-9)
+        assert slots["compression"].value / KIP == pytest.approx(-5.0, rel=1e-9)
+        assert slots["tension"].case == "E+y" and slots["tension"].assumption == "flexible"
+
+
+def test_ties_go_to_the_simpler_assumption(plan_from):
+    """A symmetric box with both idealizations stated: flexible and rigid give the same end
+    wall forces (W/2 = 10 kip each, statics) up to round-off; the design value then names
+    the simpler assumption (flexible), not whichever round-off made larger."""
+    walls = (wall("W1", "1", 0, 50, "50 kip/in") + wall("W2", "2", 0, 50, "50 kip/in")
+             + wall("WA", "A", 40, 60, "50 kip/in") + wall("WB", "B", 40, 60, "50 kip/in"))
+    stated = "[classification]\nidealized_flexible = true\nidealized_rigid = true\n"
+    env = analyze(plan_from(box(walls=walls, extra=stated)), semirigid=False).envelope
+    for wall_id in ("W1", "W2"):
+        design = env.walls[wall_id]["design"]
+        assert abs(design.value) / KIP == pytest.approx(10.0, rel=1e-9)
+        assert design.assumption == "flexible"
+
+
+def test_engineer_chosen_envelope_is_reported_beside_the_code_one(plan_from):
+    """[design] envelope = ["flexible", "rigid"] (common practice where the code allows
+    either): a second envelope over exactly those assumptions, labelled as the engineer's,
+    while the code envelope keeps the allowed assumptions."""
+    walls = (wall("W1", "1", 0, 50, "60 kip/in") + wall("W2", "2", 0, 50, "30 kip/in")
+             + wall("WA", "A", 40, 60, "50 kip/in") + wall("WB", "B", 40, 60, "50 kip/in"))
+    plan = plan_from(box(walls=walls, extra='[design]\nenvelope = ["flexible", "rigid"]\n', mesh_size=8.0))
+    result = analyze(plan)
+    doc = result.to_json()
+    chosen = doc["engineer_envelope"]
+    assert chosen["assumptions"] == ["flexible", "rigid"] and "not the code" in chosen["label"]
+    for wall_id, slots in result.engineer_envelope.walls.items():
+        values = [abs(result.methods[m].cases[c].wall_forces[wall_id]) for m in ("flexible", "rigid")
+                  for c in result.methods[m].cases]
+        assert abs(slots["design"].value) == pytest.approx(max(values))
+        assert slots["design"].assumption in ("flexible", "rigid")
+    assert "semirigid" in doc["envelope"]["allowed_assumptions"]["y"]
+
+
+def test_engineer_envelope_names_are_checked(plan_from):
+    from planshear.errors import PlanError
+
+    with pytest.raises(PlanError, match="design.envelope"):
+        plan_from(box(walls=wall("W1", "1", 0, 50, "60 kip/in"), extra='[design]\nenvelope = ["flexibel"]\n'))
