@@ -18,6 +18,7 @@ from .postprocess.beam_analogy import (
     edge_chords,
     load_along_span,
 )
+from .postprocess.deflection import span_deflections
 from .postprocess.transfer import transfer_diaphragms
 from .results import CaseResult, ChordResult, LineResult, MethodResult
 
@@ -168,14 +169,19 @@ def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         drifts = [abs(f) / line_stiffness[name] for (name, _, _), f in zip(supports, line_force, strict=True)]
         applied_sum = sum(forces[w.id] * float(w.direction @ case.direction) for w in plan.walls)
         residual = abs(applied_sum - case.force) / case.force
+        spans = span_deflections(plan, case.axis, applied, [(name, s) for name, s, _ in supports],
+                                 {name: d for (name, _, _), d in zip(supports, drifts, strict=True)})
         results[case.name] = _case_from_analogy(
             plan, case, forces, main, None, max(drifts), residual,
-            {"line_forces": {name: float(f) for (name, _, _), f in zip(supports, line_force, strict=True)}},
+            {"line_forces": {name: float(f) for (name, _, _), f in zip(supports, line_force, strict=True)},
+             "span_deflections": spans},
             case.field, reactions,
         )
     return MethodResult("flexible", results, tuple(notes + [
-        "max_displacement is the largest drift of a line of resistance; the flexible idealization "
-        "gives no diaphragm deflection of its own (see the semi-rigid results)",
+        "max_displacement is the largest drift of a line of resistance; span_deflections gives each simple "
+        "span's own deflection by beam theory (chord bending + shear of the sheathing over the length present; "
+        "SDPWS-2015 Eq. 4.2-1 terms 1 and 2 for a rectangle), with MDD/ADVE for reading ASCE 7-16 §12.3.1.3 "
+        "without the finite-element model",
     ]))
 
 

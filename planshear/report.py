@@ -219,6 +219,12 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
           s.get("collector_in_model", ""), "no collector bar in the model" if "caution" in s else ""]
          for n, s in envelope["collectors"].items()],
     )
+    flexible = doc["assumptions"].get("flexible", {}).get("cases", {})
+    tables["span_deflection"] = (
+        ["case", "span", f"MDD ({d})", f"at ({p})", f"bending ({d})", f"shear ({d})", f"ADVE ({d})", "MDD/ADVE"],
+        [[name, sp["span"], sp["MDD"], sp["MDD_at"], sp["bending"], sp["shear"], sp["ADVE"], sp["ratio"]]
+         for name, case in flexible.items() for sp in case.get("span_deflections", [])],
+    )
     chosen = doc.get("engineer_envelope") or {}
     tables["engineer_envelope"] = (
         ["kind", "name", f"design ({f})", "governs"],
@@ -473,7 +479,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
         sections = [("planshear report", summary)]
         for key, title in (("materials", "Materials"), ("stiffness", "Wall stiffness"), ("loads", "Loads"),
                            ("cases", "Load cases"),
-                           ("classification", "Flexibility check"), ("walls", "Wall forces"),
+                           ("classification", "Flexibility check"),
+                           ("span_deflection", "Span deflection by beam theory (flexible method)"),
+                           ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("engineer_envelope", "Engineer-chosen envelope (not the code check)"),
                            ("chord_walls", "Walls along chord lines: chord force against M/d"),
@@ -556,7 +564,9 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
         section("Plan drawing", figs(figures["plan"])),
         section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
         section("Loads and load cases", tab("loads") + tab("cases")),
-        section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")),
+        section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")
+                + "<p>The same check by beam theory on the flexible method's simple spans (chord bending and "
+                "sheathing shear; no finite-element model):</p>" + tab("span_deflection")),
         section("Wall forces", "<p>Largest magnitude over the cases of each assumption; design = envelope over "
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),
         section("Collectors", tab("collectors") + figs(figures["collectors"])),

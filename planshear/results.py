@@ -175,6 +175,14 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             }
         elif key == "walls_along_chords":
             out[key] = walls_along_chords_to_json(value, units)
+        elif key == "span_deflections":
+            out[key] = [
+                {"span": f"{d.left_line}-{d.right_line}", "MDD": _r(units.displacement_out(d.mdd)),
+                 "MDD_at": _r(units.length_out(d.at)), "bending": _r(units.displacement_out(d.bending)),
+                 "shear": _r(units.displacement_out(d.shear)), "ADVE": _r(units.displacement_out(d.adve)),
+                 "ratio": _r(d.ratio) if np.isfinite(d.ratio) else None}
+                for d in value
+            ]
         elif key == "transfer":
             out[key] = [transfer_to_json(td, units) for td in value]
         elif key == "line_forces":

@@ -343,3 +343,24 @@ def test_wall_weight_on_the_chord_lines_gives_the_code_deflection(plan_from):
                                    chord_EA="20000 kip", load=load, mesh_size=5.0))
     assert span.mdd / INCH == pytest.approx(sdpws_deflection(300.0, 100.0, 50.0, 20000e3, 15.0), rel=0.03)
     assert span.mdd_local == pytest.approx(span.mdd, rel=0.02)  # the loaded edges are not crushed
+
+
+def test_flexible_span_deflection_is_the_code_equation(plan_from):
+    """The flexible method's own span deflection (unit-load method, chords + shear over the
+    length present) is SDPWS-2015 Eq. 4.2-1, bending + shear terms, on a rectangle under a
+    uniform load: 0.6875 in for v = 300 plf (rel. 1e-4: trapezoid rule on 400 intervals and
+    41 trial positions), so MDD/ADVE can be read without the finite-element model."""
+    from planshear.idealized import flexible_analysis
+
+    plan = plan_from(box(walls=END_WALLS, material='{ kind = "wood-panel", Ga = "15 kip/in" }', chord_EA="20000 kip",
+                         load=AREA_LOAD, mesh_size=5.0))
+    result = flexible_analysis(plan, expand_load_cases(plan))
+    (span,) = result.cases["E+y"].extra["span_deflections"]
+    expected = sdpws_deflection(300.0, 100.0, 50.0, 20000e3, 15.0)
+    # Et = 0.1·Gt adds a little membrane bending stiffness to the chords' (0.75 %).
+    assert (span.bending + span.shear) / INCH == pytest.approx(expected, rel=0.005)
+    assert span.shear / INCH == pytest.approx(0.5, rel=1e-4)
+    assert span.at / FT == pytest.approx(50.0, abs=2.5)
+    drift = 15 * KIP / (1e4 * KIP / INCH)  # each end wall takes 15 kip at 10,000 kip/in
+    assert span.adve == pytest.approx(drift, rel=1e-9)
+    assert span.ratio == pytest.approx(span.mdd / drift)
