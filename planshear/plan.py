@@ -23,6 +23,7 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Point, Polygon
 
+from .code import DEFAULT_EDITION, EDITIONS
 from .errors import PlanError, UnstablePlanError
 from .schema import schema_problems
 from .stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
@@ -230,6 +231,7 @@ class Plan:
     mesh: MeshSettings
     classification: ClassificationFlags
     design_envelope: tuple[str, ...] = ()  # [design] envelope: assumptions of an engineer-chosen envelope
+    code: str = "ASCE 7-16"  # [plan] code: the edition whose clauses apply (planshear.code)
     collector_EA: float | None = None  # N, [diaphragm] collector_EA as written (None if absent)
 
     @property
@@ -388,6 +390,11 @@ class _PlanBuilder:
         self.unit = unit
         self.scale = LENGTH_UNITS[unit]
         name = plan_table.get("name", Path(self.label).stem)
+        code = plan_table.get("code", DEFAULT_EDITION)
+        if code not in EDITIONS:
+            self.problem("plan.code", f'"{code}" is not available; planshear implements {", ".join(EDITIONS)} '
+                         "(ASCE 7-22 only where its clauses can be confirmed from the standard's text: not yet). "
+                         f'Remove the key or write code = "{DEFAULT_EDITION}"')
 
         dia = doc["diaphragm"]
         outline = self.polygon(dia["outline"], "diaphragm.outline")
@@ -484,6 +491,7 @@ class _PlanBuilder:
             collector_EA=collector_EA,
             transfers=tuple(transfers),
             design_envelope=chosen,
+            code=code,
         )
         check_stability(plan)
         return plan

@@ -300,6 +300,7 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
     area_unit = f"{units.length}²"
     summary = {
         "name": plan.name,
+        "code": plan.code,
         "file": plan.source,
         "length_unit": plan.length_unit,
         f"area_{area_unit}": round(units.length_out(units.length_out(plan.region.area)), 6),

@@ -48,6 +48,7 @@ PLAN_SCHEMA: dict = {
                 "name": {"type": "string"},
                 "length_unit": {"type": "string"},
                 "description": {"type": "string"},
+                "code": {"type": "string"},
             },
             "additionalProperties": False,
         },
