@@ -208,6 +208,14 @@ def _print_results(results: Results, out: Path) -> None:
         if design:
             print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     _print_walls_along_chords(doc)
+    drift = doc.get("drift")
+    if drift:
+        print(f"\nstory drift ({drift['clause']}; {units['displacement']})")
+        for group in ("walls", "lines"):
+            for name, c in drift[group].items():
+                print(f"  {group[:-1]} {name}: δxe {c['elastic']:.3f}, δx {c['amplified']:.3f}, δx/h {c['ratio']:.4f} "
+                      f"{'≤' if c['ok'] else '>'} {c['allowable']:g}  ({c['assumption']} {c['case']})"
+                      + ("" if c["ok"] else "   (!) exceeds the allowable drift"))
     chosen = doc.get("engineer_envelope")
     if chosen:
         print(f"\n{chosen['label']} ({force})")

@@ -193,6 +193,7 @@ class Load:
     eccentricity: float = 0.05
     collector_overstrength: float = 1.0
     light_frame: bool = False  # braced entirely by light-frame shear walls (ASCE 7-16 §12.10.2.1 Exception 2)
+    drift: tuple[float, float, float, float] | None = None  # (Cd, Ie, story height m, allowable Δa/hsx)
 
 
 @dataclass(frozen=True)
@@ -787,7 +788,8 @@ class _PlanBuilder:
             if ecc is not None and ecc > 0.5:
                 self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
                 ecc = None
-            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame"}
+            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame",
+                            "drift"}
             if kind == "edge":
                 misplaced = sorted(seismic_keys & set(entry))
                 if misplaced:
@@ -890,7 +892,8 @@ class _PlanBuilder:
                 Load(load_name, kind, directions, area_weight=area_weight, zone_area_weight=zone_weights,
                      line_weights=tuple(line_weights), point_weights=tuple(point_weights),
                      point_footprints=tuple(footprints), total=total, fpx=fpx,
-                     eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)))
+                     eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)),
+                     drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx))
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')
@@ -928,6 +931,23 @@ class _PlanBuilder:
                 f"freedom and need about {need / 2**30:.3g} GB of memory (this machine has {available / 2**30:.3g} GB); "
                 f"coarsen the mesh: use mesh.size of at least {coarsest / self.scale:.3g} {self.unit}",
             )
+
+    def drift_inputs(self, raw: dict | None, where: str, fpx) -> tuple[float, float, float, float] | None:
+        """(Cd, Ie, story height m, allowable drift ratio) for ASCE 7-16 §12.8.6 / Table 12.12-1;
+        Ie defaults to the one of fpx, else 1.0."""
+        if raw is None:
+            return None
+        Cd = self.number(float(raw["Cd"]), where + ".Cd", positive=True, allow_zero=False)
+        Ie = self.number(float(raw.get("Ie", fpx[1] if fpx else 1.0)), where + ".Ie", positive=True, allow_zero=False)
+        height = self.quantity(raw["story_height"], LENGTH, where + ".story_height")
+        allowable = self.number(float(raw["allowable"]), where + ".allowable", positive=True, allow_zero=False)
+        if allowable is not None and allowable >= 0.1:
+            self.problem(where + ".allowable", f"is the allowable story drift ratio Δa/hsx of ASCE 7-16 Table 12.12-1 "
+                         f"(e.g. 0.025), got {allowable}")
+            return None
+        if None in (Cd, Ie, height, allowable):
+            return None
+        return Cd, Ie, height, allowable
 
     def design_envelope(self, raw: dict) -> tuple[str, ...]:
         """[design] envelope: the assumptions of an engineer-chosen envelope, reported beside

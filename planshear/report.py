@@ -225,6 +225,12 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
         [[name, sp["span"], sp["MDD"], sp["MDD_at"], sp["bending"], sp["shear"], sp["ADVE"], sp["ratio"]]
          for name, case in flexible.items() for sp in case.get("span_deflections", [])],
     )
+    drift = doc.get("drift") or {"walls": {}, "lines": {}}
+    tables["drift"] = (
+        ["element", "name", f"δxe ({d})", f"δx = Cd·δxe/Ie ({d})", "δx / h", "allowable", "within", "governs"],
+        [[group[:-1], name, c["elastic"], c["amplified"], c["ratio"], c["allowable"], "yes" if c["ok"] else "NO",
+          f"{c['assumption']} {c['case']}"] for group in ("walls", "lines") for name, c in drift[group].items()],
+    )
     chosen = doc.get("engineer_envelope") or {}
     tables["engineer_envelope"] = (
         ["kind", "name", f"design ({f})", "governs"],
@@ -484,13 +490,14 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("engineer_envelope", "Engineer-chosen envelope (not the code check)"),
+                           ("drift", "Story drift (ASCE 7-16 §12.8.6, §12.12.1)"),
                            ("chord_walls", "Walls along chord lines: chord force against M/d"),
                            ("walls_across", "Walls across the load: force from chord elongation"),
                            ("transfer", "Transfer diaphragms"), ("net_shears", "Net shears in transfer regions"),
                            ("case_notes", "Notes per case"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
-            if key == "engineer_envelope" and not rows:
+            if key in ("engineer_envelope", "drift") and not rows:
                 continue
             sections.append((title, _plain_rows(headers, rows)))
         _text_pages(pdf, sections)
@@ -571,6 +578,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),
         section("Collectors", tab("collectors") + figs(figures["collectors"])),
         section("Chords", tab("chords") + figs(figures["chords"])),
+        section("Story drift (ASCE 7-16 §12.8.6, §12.12.1)", f"<p>{_esc(doc['drift']['note'])}</p>" + tab("drift"))
+        if doc.get("drift") else "",
         section("Engineer-chosen envelope", f"<p>{_esc(doc['engineer_envelope']['label'])}</p>" + tab("engineer_envelope"))
         if doc.get("engineer_envelope") else "",
         section("Walls along chord lines", f"<p>{_esc(CHORD_WALLS_TEXT)}</p>" + tab("chord_walls") + tab("walls_across")),

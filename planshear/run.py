@@ -20,6 +20,7 @@ from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
+from .postprocess.drift import DriftCheck, drift_checks
 from .postprocess.envelope import Envelope, build_envelope, compare_walls
 from .postprocess.transfer import strut_cautions
 from .results import (
@@ -56,6 +57,7 @@ class Results:
     envelope: Envelope | None = None
     equilibrium: dict[str, float] = field(default_factory=dict)  # assumption → largest imbalance
     engineer_envelope: Envelope | None = None  # over the assumptions of [design] envelope
+    drift: tuple[DriftCheck, ...] = ()  # ASCE 7-16 §12.8.6 / §12.12.1, loads with drift inputs
 
     @property
     def units(self) -> OutputUnits:
@@ -80,6 +82,7 @@ class Results:
                                else self._classification_not_calculated()),
             "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
             "envelope": envelope_to_json(self.envelope, units),
+            "drift": drift_to_json(self.drift, units),
             "engineer_envelope": None if self.engineer_envelope is None else {
                 "label": "engineer-chosen envelope over " + " + ".join(self.plan.design_envelope)
                          + " ([design] envelope); not the code's allowed assumptions, see envelope",
@@ -210,8 +213,9 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     engineer = None
     if plan.design_envelope:
         engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
+    drift = tuple(drift_checks(plan, methods, cases, run))
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
-                   engineer)
+                   engineer, drift)
 
 
 def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:
@@ -292,6 +296,26 @@ def _likely_cause(plan: Plan) -> str:
         return (f"the wall stiffnesses span a factor of {k.max() / k.min():.1e}, beyond what double precision "
                 "resolves: use realistic values (a 'rigid' wall 1e3–1e4 times stiffer than the others is enough)")
     return "please report this with the plan file"
+
+
+def drift_to_json(checks: tuple[DriftCheck, ...], units: OutputUnits) -> dict | None:
+    """Governing drift check per wall and per line in output units (None without drift inputs)."""
+    if not checks:
+        return None
+
+    def entry(c: DriftCheck) -> dict:
+        return {"assumption": c.assumption, "case": c.case, "elastic": round(units.displacement_out(c.elastic), 6),
+                "amplified": round(units.displacement_out(c.amplified), 6),
+                "story_height": round(units.length_out(c.story_height), 6), "ratio": round(c.ratio, 6),
+                "allowable": c.allowable, "ok": c.ok}
+
+    return {
+        "clause": "ASCE 7-16 §12.8.6 (Eq. 12.8-15, δx = Cd·δxe/Ie), §12.12.1 and Table 12.12-1 (allowable as given)",
+        "note": "elastic displacements from the case force (Fpx or the given total), not a separate story force Fx; "
+                "lines: the diaphragm's largest displacement on the line in the semi-rigid model (§12.12.4)",
+        "walls": {c.name: entry(c) for c in checks if c.kind == "wall"},
+        "lines": {c.name: entry(c) for c in checks if c.kind == "line"},
+    }
 
 
 def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> dict:

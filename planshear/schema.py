@@ -202,6 +202,12 @@ PLAN_SCHEMA: dict = {
                     "eccentricity": NUMBER,
                     "collector_overstrength": NUMBER,
                     "light_frame": {"type": "boolean"},
+                    "drift": {
+                        "type": "object",
+                        "required": ["Cd", "story_height", "allowable"],
+                        "properties": {"Cd": NUMBER, "Ie": NUMBER, "story_height": QUANTITY, "allowable": NUMBER},
+                        "additionalProperties": False,
+                    },
                 },
                 "additionalProperties": False,
             },

@@ -80,3 +80,31 @@ def test_collector_rule_reaches_the_envelope(plan_from):
         assert entry["cap"] == pytest.approx(entry["value"], rel=1e-6)
         checked += 1
     assert checked
+
+
+def test_amplified_drift_of_the_walls(plan_from):
+    """ASCE 7-16 Eq. 12.8-15: δx = Cd·δxe/Ie. Two end walls of 50 kip/in share 100 kip
+    (statics, flexible method): δxe = 50/50 = 1.0 in; Cd = 4, Ie = 1.25 → δx = 3.2 in; on a
+    12-ft story δx/h = 3.2/144 = 0.0222 ≤ 0.025 (Table 12.12-1 value given by the engineer)."""
+    from planshear.run import analyze
+
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "100 kip"
+        directions = ["y"]
+        eccentricity = 0
+        drift = { Cd = 4.0, Ie = 1.25, story_height = "12 ft", allowable = 0.025 }
+        ''')
+    plan = plan_from(rectangle_plan(walls=end_walls(), load=load) + '[classification]\nidealized_flexible = true\n')
+    doc = analyze(plan, semirigid=False).to_json()
+    checks = {name: c for name, c in doc["drift"]["walls"].items() if name in ("W1", "W2")}
+    assert checks
+    for c in checks.values():
+        if c["assumption"] == "flexible":
+            assert c["elastic"] == pytest.approx(1.0, rel=1e-9)
+        assert c["amplified"] == pytest.approx(c["elastic"] * 4.0 / 1.25, rel=1e-9)
+        assert c["ratio"] == pytest.approx(abs(c["amplified"]) / 144.0, abs=1e-6)  # rounded in the JSON
+        assert c["ok"] == (c["ratio"] <= 0.025)

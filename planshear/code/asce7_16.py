@@ -8,7 +8,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["EDITION", "FpxValues", "fpx_12_10_1_1", "CollectorRule", "collector_rule_12_10_2_1"]
+__all__ = ["EDITION", "FpxValues", "fpx_12_10_1_1", "CollectorRule", "collector_rule_12_10_2_1",
+           "amplified_displacement_12_8_6", "drift_within_limit_12_12_1"]
 
 EDITION = "ASCE 7-16"
 
@@ -80,3 +81,16 @@ def collector_rule_12_10_2_1(omega0: float, case_force: float, fpx: FpxValues | 
                              "Exception 1: capped at the forces of Eq. 12.10-3 without Ω0")
     governs = "item 2: Ω0 × forces of Eq. 12.10-1" if item2 >= item3 else "item 3: forces of Eq. 12.10-2"
     return CollectorRule(uncapped / case_force, uncapped / case_force, fpx.eq_12_10_3 / case_force, governs)
+
+
+def amplified_displacement_12_8_6(delta_xe: float, Cd: float, Ie: float) -> float:
+    """§12.8.6, Eq. 12.8-15: δx = Cd·δxe / Ie, the elastic displacement δxe (m) amplified
+    for the inelastic response (deformation compatibility, §12.12.4, uses the same δx)."""
+    return Cd * delta_xe / Ie
+
+
+def drift_within_limit_12_12_1(delta_x: float, story_height: float, allowable_ratio: float) -> bool:
+    """§12.12.1 / Table 12.12-1: the design story drift Δ = δx (for one story) must not
+    exceed Δa = (allowable ratio)·hsx; the ratio is the engineer's pick from the table
+    (risk category and structure type)."""
+    return abs(delta_x) <= allowable_ratio * story_height
