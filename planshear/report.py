@@ -182,6 +182,13 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
                          _at(span.get("MDD_at")), span.get("MDD_local"), _at(span.get("MDD_local_at"))])
     tables["classification"] = (["load along", "case", "span", f"MDD ({d})", f"ADVE ({d})", "MDD/ADVE", "behaviour",
                                  "MDD at (x, y)", f"local nodal peak ({d}), not used", "peak at (x, y)"], rows)
+    tables["irregularities"] = (
+        ["type", "irregularity", "method", "load", "along", "present", "measured", "applies", "consequence"],
+        [[i["type"], i["name"], i.get("method", ""), i.get("load", ""), i.get("axis", ""),
+          {True: "yes", False: "no", None: "not checked"}[i["present"]], _measured(i, d),
+          {True: "yes", False: "no", None: "SDC not given"}[i["applies"]], i["consequence"]]
+         for i in doc.get("irregularities", [])],
+    )
     envelope = doc.get("envelope") or {"walls": {}, "collectors": {}, "chords": {}}
     methods = list(doc["assumptions"])
     rows = []
@@ -239,6 +246,21 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
             rows.append([m, case_name, case["applied_force"], case["equilibrium_residual"]])
     tables["residuals"] = (["assumption", "case", f"applied force ({f})", "relative residual"], rows)
     return tables
+
+
+def _measured(item: dict, d: str) -> str:
+    """Short text of an irregularity's measured values (``d``: displacement unit)."""
+    v = item["values"]
+    if "delta_max" in v:
+        text = f"δmax/δavg = {v['ratio']:.3f} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
+        return text + (f"; Ax = {v['Ax']:.3f}" if "Ax" in v else "")
+    if "share_x" in v:
+        return f"projections {100 * v['share_x']:.1f} % and {100 * v['share_y']:.1f} % of the plan dimensions"
+    if "open_area" in v:
+        return f"open area {100 * v['ratio']:.1f} % of the gross enclosed area"
+    if "change" in v:
+        return f"stated stiffness ratio {v['adjacent_stiffness_ratio']:g}, change {100 * v['change']:.0f} %"
+    return "no re-entrant corner" if v.get("corners") == 0 else "-"
 
 
 def transfer_tables(doc: dict, cases: set[str] | None = None) -> dict[str, tuple[list[str], list[list]]]:
@@ -453,7 +475,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
         sections = [("planshear report", summary)]
         for key, title in (("materials", "Materials"), ("stiffness", "Wall stiffness"), ("loads", "Loads"),
                            ("cases", "Load cases"),
-                           ("classification", "Flexibility check"), ("walls", "Wall forces"),
+                           ("classification", "Flexibility check"),
+                           ("irregularities", "Horizontal irregularities, ASCE 7-16 Table 12.3-1 (not yet applied to the forces)"),
+                           ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("chord_walls", "Walls along chord lines: chord force against M/d"),
                            ("walls_across", "Walls across the load: force from chord elongation"),
@@ -474,6 +498,14 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
     (folder / "report.html").write_text(_html(doc, tables, figures), encoding="utf-8")
     written.append("report.html")
     return written
+
+
+IRREGULARITY_TEXT = (
+    "Detected and reported only: the consequences listed (torsional amplification Ax, the 25 % increase of "
+    "§12.3.3.4) are not yet applied to the forces in this report. Torsion: δ at the plan's two extreme edges "
+    "across the load, worst of the accidental-torsion cases; re-entrant corners from the outline; open area = "
+    "openings / area enclosed by the outline. The SDC application column is from memory of the standard."
+)
 
 
 def _not_run_lines(doc: dict) -> list[str]:
@@ -534,6 +566,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
         section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
         section("Loads and load cases", tab("loads") + tab("cases")),
         section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")),
+        section("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", f"<p>{_esc(IRREGULARITY_TEXT)}</p>"
+                + tab("irregularities")),
         section("Wall forces", "<p>Largest magnitude over the cases of each assumption; design = envelope over "
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),
         section("Collectors", tab("collectors") + figs(figures["collectors"])),

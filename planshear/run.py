@@ -20,12 +20,14 @@ from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
 from .postprocess.envelope import Envelope, build_envelope, compare_walls
+from .postprocess.irregularity import Irregularity, detect_irregularities
 from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
     classification_to_json,
     comparison_to_json,
     envelope_to_json,
+    irregularity_to_json,
     method_to_json,
 )
 from .semirigid import SemirigidRun, semirigid_analysis
@@ -54,6 +56,7 @@ class Results:
     sensitivity: dict[float, MethodResult] = field(default_factory=dict)
     envelope: Envelope | None = None
     equilibrium: dict[str, float] = field(default_factory=dict)  # assumption → largest imbalance
+    irregularities: tuple[Irregularity, ...] = ()  # ASCE 7-16 Table 12.3-1 checks
 
     @property
     def units(self) -> OutputUnits:
@@ -79,6 +82,7 @@ class Results:
             "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
             "envelope": envelope_to_json(self.envelope, units),
             "comparison": comparison_to_json(compare_walls(self.methods), units),
+            "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "
                          "(with the accidental torsion for rigid and semi-rigid); relative to F and F × plan size",
@@ -199,7 +203,9 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     struts = strut_cautions(plan, methods)
     if struts:
         envelope = replace(envelope, cautions={**envelope.cautions, **struts})
-    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium)
+    irregularities = detect_irregularities(plan, cases, methods, run.solution if run else None, classification)
+    return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
+                   irregularities)
 
 
 def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:
