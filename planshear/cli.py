@@ -227,9 +227,16 @@ def _print_irregularities(doc: dict) -> None:
         print(f"{head} — {state}")
         if item["present"] is None:
             print(f"    {item['consequence']}")
-        elif item["present"]:
-            applies = {True: "applies", False: "does not apply", None: "applies by SDC (no SDC given)"}[item["applies"]]
-            print(f"    {applies}: {item['consequence']}")
+        elif item["present"] is False:
+            continue
+        elif item["applies"] is False:
+            print(f"    does not apply: {item['consequence']}")
+        else:
+            sections = ", ".join(x if x.startswith("Table") else f"§{x}" for x in item["sections"])
+            text = (f"    applies: {sections}" if item["applies"] else
+                    f"    no sdc given; by SDC Table 12.3-1 refers to {sections}")
+            print(text + (f"; Ax = {v['Ax']:.3f} on the ±ecc cases" if "Ax" in v and "12.8.4.3" in item["sections"]
+                          else "") + " (see results.json or the report)")
 
 
 def _print_walls_along_chords(doc: dict) -> None:

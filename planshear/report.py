@@ -88,7 +88,9 @@ LIMITATIONS_TEXT = [
     "One diaphragm level per plan; vertical irregularities, transfer forces and load combinations are not formed.",
     "The flexible method gives no force to walls on skewed lines.",
     "Peaks of unit shear at re-entrant corners and wall ends depend on the mesh (stress concentrations).",
-    "Code checks are limited to the flexibility classification; capacities are not checked.",
+    "Code checks are limited to the flexibility classification and the horizontal irregularities of ASCE 7-16 "
+    "Table 12.3-1 Types 1a, 1b, 2 and 3 (detected and reported, not yet applied to the forces); capacities are "
+    "not checked.",
 ]
 
 
@@ -454,6 +456,15 @@ def _plain_rows(headers: list[str], rows: list[list]) -> list[str]:
     return ["  ".join(str(c).ljust(w)[:40] for c, w in zip(row, widths, strict=True)) for row in cells]
 
 
+def _irregularity_lines(headers: list[str], rows: list[list]) -> list[str]:
+    """Plain lines of the irregularity table: the short columns, then each consequence wrapped."""
+    lines = _plain_rows(headers[:6] + headers[7:8], [row[:6] + row[7:8] for row in rows]) + [""]
+    for row in rows:
+        where = " ".join(str(c) for c in row[2:5] if c)
+        lines += _wrap(f"Type {row[0]} {row[1]}" + (f" [{where}]" if where else "") + f": {row[6]} — {row[8]}", 110)
+    return lines
+
+
 def write_review_package(folder: Path, results, doc: dict) -> list[str]:
     """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``."""
     written = write_tables(folder, doc)
@@ -485,6 +496,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("case_notes", "Notes per case"),
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
+            if key == "irregularities":  # the consequence is a sentence: wrapped below each row
+                sections.append((title, _irregularity_lines(headers, rows)))
+                continue
             sections.append((title, _plain_rows(headers, rows)))
         _text_pages(pdf, sections)
         figures = _figures(doc, results, folder, pdf)

@@ -391,7 +391,8 @@ def irregularity_to_json(item, units: OutputUnits) -> dict:
         else:
             values[key] = convert[kind](float(value))
     out = {"type": item.type, "name": item.name, "clause": item.clause, "present": item.present,
-           "values": values, "applies": item.applies, "consequence": item.consequence}
+           "values": values, "applies": item.applies, "sections": list(item.sections),
+           "consequence": item.consequence}
     for key in ("method", "load", "axis"):
         if getattr(item, key) is not None:
             out[key] = getattr(item, key)

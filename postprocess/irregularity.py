@@ -48,6 +48,7 @@ class Irregularity:
     method: str | None = None  # torsional checks: "rigid" or "semirigid"
     load: str | None = None
     axis: str | None = None  # torsional checks: direction of the load
+    sections: tuple[str, ...] = ()  # Table 12.3-1 reference sections that apply (all of the type's when no SDC)
 
 
 def end_displacements(points: np.ndarray, along: np.ndarray, s: np.ndarray, tolerance: float) -> np.ndarray:
@@ -135,7 +136,7 @@ def _with_omega(extra: str, sections: list[str], loads) -> str:
               if load.kind == "seismic" and load.collector_overstrength > 1.0]
     if "12.3.3.4" not in sections or not omegas:
         return extra
-    note = ("the collector forces with overstrength of load(s) " + ", ".join(omegas) + " need no 25 % increase "
+    note = ("The collector forces with overstrength of load(s) " + ", ".join(omegas) + " need no 25 % increase "
             "(§12.3.3.4 exception); forces without Ω0 (e.g. diaphragm-to-wall connections) still do")
     return f"{extra}. {note}" if extra else note
 
@@ -196,7 +197,7 @@ def _torsional(plan: Plan, cases, methods: dict[str, MethodResult], solution, cl
                     consequence = _consequence(kind, load.sdc, sections, _with_omega(extra, sections, [load]))
                 label = "extreme torsional" if kind == "1b" else "torsional"
                 found.append(Irregularity(kind, label, f"ASCE 7-16 Table 12.3-1 Type {kind}", True, values, applies,
-                                          consequence, method_name, load_name, axis))
+                                          consequence, method_name, load_name, axis, tuple(sections)))
     return found
 
 
@@ -219,7 +220,8 @@ def _reentrant(plan: Plan) -> Irregularity:
     applies, sections = _applies("2", present, sdc)
     consequence = (_consequence("2", sdc, sections, _with_omega("", sections, plan.loads)) if present else
                    f"no corner has both projections above {100 * code.REENTRANT_PROJECTION:.0f} % of the plan dimension")
-    return Irregularity("2", "re-entrant corner", clause, present, values, applies, consequence)
+    return Irregularity("2", "re-entrant corner", clause, present, values, applies, consequence,
+                        sections=tuple(sections))
 
 
 def _discontinuity(plan: Plan) -> list[Irregularity]:
@@ -234,21 +236,23 @@ def _discontinuity(plan: Plan) -> list[Irregularity]:
     consequence = (_consequence("3", sdc, sections, _with_omega("", sections, plan.loads)) if present else
                    f"openings cover {100 * open_area / gross:.1f} % ≤ {100 * code.OPEN_AREA_LIMIT:.0f} % of the gross "
                    "enclosed area (notches in the outline are not counted: see Type 2)")
-    out = [Irregularity("3", "diaphragm discontinuity (open area)", clause, present, values, applies, consequence)]
+    out = [Irregularity("3", "diaphragm discontinuity, open area", clause, present, values, applies, consequence,
+                        sections=tuple(sections))]
     stated = plan.classification.adjacent_stiffness_ratio
     if stated is None:
-        out.append(Irregularity("3", "diaphragm discontinuity (stiffness change)", clause, None, {}, None,
+        out.append(Irregularity("3", "diaphragm discontinuity, stiffness change", clause, None, {}, None,
                                 "not checked: it needs the adjacent story's effective diaphragm stiffness; state "
                                 "classification.adjacent_stiffness_ratio in the plan to check it"))
     else:
         irregular, change = code.stiffness_change_type_3(stated)
         applies, sections = _applies("3", irregular, sdc)
         out.append(Irregularity(
-            "3", "diaphragm discontinuity (stiffness change)", clause, irregular,
+            "3", "diaphragm discontinuity, stiffness change", clause, irregular,
             {"adjacent_stiffness_ratio": stated, "change": round(change, 4), "limit": code.STIFFNESS_CHANGE_LIMIT},
             applies,
             _consequence("3", sdc, sections, _with_omega("", sections, plan.loads)) if irregular else
-            f"stated stiffness change {100 * change:.0f} % ≤ {100 * code.STIFFNESS_CHANGE_LIMIT:.0f} %"))
+            f"stated stiffness change {100 * change:.0f} % ≤ {100 * code.STIFFNESS_CHANGE_LIMIT:.0f} %",
+            sections=tuple(sections)))
     return out
 
 
@@ -264,6 +268,7 @@ def detect_irregularities(plan: Plan, cases, methods: dict[str, MethodResult], s
         rigid_note = ("the plan states idealized_rigid, but §12.3.1.2 allows the rigid idealization only for "
                       "structures without horizontal irregularities")
         found = [i if not i.present else Irregularity(i.type, i.name, i.clause, i.present, i.values, i.applies,
-                                                      f"{i.consequence}; {rigid_note}", i.method, i.load, i.axis)
+                                                      f"{i.consequence}; {rigid_note}", i.method, i.load, i.axis,
+                                                      i.sections)
                  for i in found]
     return tuple(found)

@@ -216,7 +216,7 @@ def test_open_area(plan_from, depth, present):
     and 2560 ft² (51.2 %)."""
     opening = f"openings = [[[10, 9], [90, 9], [90, {9 + depth:g}], [10, {9 + depth:g}]]]"
     plan = plan_from(_plan("[[0, 0], [100, 0], [100, 50], [0, 50]]", 50, opening))
-    item = next(i for i in detect_irregularities(plan, [], {}) if i.name.endswith("(open area)"))
+    item = next(i for i in detect_irregularities(plan, [], {}) if i.name.endswith("open area"))
     assert item.present is present
     assert item.values["open_area"] / FT**2 == pytest.approx(80 * depth, rel=1e-9)
     assert item.values["gross_area"] / FT**2 == pytest.approx(5000, rel=1e-9)
@@ -230,7 +230,7 @@ def test_stiffness_change_only_when_stated(plan_from, ratio, present):
     README): 0.7 → 43 %, 0.6 → 67 %, 1.4 → 40 %, 1.6 → 60 %."""
     extra = "" if ratio is None else f"[classification]\nadjacent_stiffness_ratio = {ratio}"
     plan = plan_from(_box(extra=extra))
-    item = next(i for i in detect_irregularities(plan, [], {}) if i.name.endswith("(stiffness change)"))
+    item = next(i for i in detect_irregularities(plan, [], {}) if i.name.endswith("stiffness change"))
     assert item.present is present
     if ratio is None:
         assert item.consequence.startswith("not checked")
@@ -271,3 +271,18 @@ def test_results_json_and_terminal(plan_from, tmp_path, capsys):
     assert "Type 1b extreme torsional" in out and "not yet applied to the forces" in out
     headers, rows = report_tables(doc)["irregularities"]
     assert len(rows) == len(items) and rows[0][0] == "1b"
+
+
+def test_report_has_the_irregularity_table(plan_from, tmp_path):
+    """The review package (HTML and PDF) lists every check; the HTML table rows follow
+    results.json one for one."""
+    plan = plan_from(_l_plan(30.0, 30.0))
+    results = analyze(plan, semirigid=False)
+    out = results.write(tmp_path / "out")
+    doc = json.loads((out / "results.json").read_text())
+    html_text = (out / "report.html").read_text()
+    assert "Horizontal irregularities (ASCE 7-16 Table 12.3-1)" in html_text
+    assert "not yet applied to the forces" in html_text
+    table = html_text.split('class="irregularities"')[1].split("</table>")[0]
+    assert table.count("<tr") == len(doc["irregularities"]) + 1
+    assert (out / "report.pdf").stat().st_size > 0
