@@ -218,7 +218,8 @@ def _print_irregularities(doc: dict) -> None:
                                        item.get("axis") and f"along {item['axis']}"]))
         head = f"  Type {item['type']} {item['name']}" + (f" [{where}]" if where else "")
         if "delta_max" in v:
-            head += f": δmax/δavg = {v['ratio']:.3f} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
+            ratio = "unbounded (δavg ≤ 0)" if v["ratio"] is None else f"{v['ratio']:.3f}"
+            head += f": δmax/δavg = {ratio} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
         elif "share_x" in v:
             head += f": projections {100 * v['share_x']:.1f} % / {100 * v['share_y']:.1f} % of the plan dimensions"
         elif "open_area" in v:

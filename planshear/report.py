@@ -254,7 +254,8 @@ def _measured(item: dict, d: str) -> str:
     """Short text of an irregularity's measured values (``d``: displacement unit)."""
     v = item["values"]
     if "delta_max" in v:
-        text = f"δmax/δavg = {v['ratio']:.3f} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
+        ratio = "unbounded (δavg ≤ 0)" if v["ratio"] is None else f"{v['ratio']:.3f}"
+        text = f"δmax/δavg = {ratio} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
         return text + (f"; Ax = {v['Ax']:.3f}" if "Ax" in v else "")
     if "share_x" in v:
         return f"projections {100 * v['share_x']:.1f} % and {100 * v['share_y']:.1f} % of the plan dimensions"

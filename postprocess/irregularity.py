@@ -10,6 +10,7 @@ Everything is SI (m, m²); ``values`` keys say what each number is (see :data:`V
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -60,10 +61,12 @@ def end_displacements(points: np.ndarray, along: np.ndarray, s: np.ndarray, tole
 
 
 def _ratio(ends: np.ndarray) -> tuple[float, float, float]:
-    """δmax, δavg (m) and δmax/δavg of the two end displacements (magnitudes)."""
-    magnitude = np.abs(ends)
-    delta_max, delta_avg = float(magnitude.max()), float(magnitude.mean())
-    return delta_max, delta_avg, (delta_max / delta_avg if delta_avg > 0 else 1.0)
+    """δmax (largest magnitude), δavg (algebraic mean, m) and δmax/δavg of the two end
+    displacements along the load. The mean is signed: ends moving in opposite directions
+    (rotation dominating) give a small δavg and a large ratio, as they should; a mean of
+    magnitudes would call a pure rotation regular. δavg ≤ 0 gives an infinite ratio."""
+    delta_max, delta_avg = float(np.abs(ends).max()), float(ends.mean())
+    return delta_max, delta_avg, (delta_max / delta_avg if delta_avg > 0 else math.inf)
 
 
 def _rigid_ends(plan: Plan, case: LoadCase, motion: dict, tolerance: float) -> np.ndarray:
@@ -175,7 +178,10 @@ def _torsional(plan: Plan, cases, methods: dict[str, MethodResult], solution, cl
                 kind = code.torsional_irregularity_12_3_1(ratio)
                 flexible = (classification.flexible_allowed(axis) if classification is not None
                             else plan.classification.idealized_flexible)
-                values = {"ratio": round(ratio, 4), "delta_max": delta_max, "delta_avg": delta_avg,
+                # JSON has no infinity: an unbounded ratio is reported as null with δavg ≤ 0.
+                values = {"ratio": round(ratio, 4) if math.isfinite(ratio) else None,
+                          "delta_max": delta_max, "delta_avg": delta_avg,
+                          "accidental_torsion_included": any(c.eccentricity_sign != 0 for c in with_torsion),
                           "delta_end_low": float(ends[0]), "delta_end_high": float(ends[1]), "case": case.name,
                           "limit_1a": code.TORSIONAL_1A, "limit_1b": code.TORSIONAL_1B}
                 if kind is None:
@@ -192,7 +198,7 @@ def _torsional(plan: Plan, cases, methods: dict[str, MethodResult], solution, cl
                 else:
                     extra = ""
                     if "12.8.4.3" in sections or load.sdc is None:
-                        extra = (f"Ax = ({ratio:.4f}/1.2)² = {ax:.3f} on the accidental torsion of the ±ecc "
+                        extra = (f"Ax = ({ratio:.4f}/1.2)² bounded to 1.0…3.0 = {ax:.3f} on the accidental torsion of the ±ecc "
                                  f"cases of load {load_name} along {axis}")
                     consequence = _consequence(kind, load.sdc, sections, _with_omega(extra, sections, [load]))
                 label = "extreme torsional" if kind == "1b" else "torsional"

@@ -286,3 +286,24 @@ def test_report_has_the_irregularity_table(plan_from, tmp_path):
     table = html_text.split('class="irregularities"')[1].split("</table>")[0]
     assert table.count("<tr") == len(doc["irregularities"]) + 1
     assert (out / "report.pdf").stat().st_size > 0
+
+
+def test_ends_moving_apart_are_extreme_torsion(plan_from):
+    """δavg is the algebraic mean of the end displacements (Table 12.3-1: average of the
+    drifts at the two ends): when rotation dominates and the ends move in opposite
+    directions the ratio is large, not near 1. Box 90 × 60 ft with its two y-walls
+    (k = 10 kip/in) at x = 40 and 50 ft and weak x-walls (0.1 kip/in) on the edges; hand
+    statics: x_CR = 45, J = 10·5²·2 + 0.1·30²·2 = 680, θ = 100·4.5/680 per ±ecc case,
+    v = 100/20 = 5 in, ends v ∓ 45θ = 5 ∓ 29.78 in: δmax/δavg = 34.78/5 = 6.96 → Type 1b,
+    Ax = 3.0 (bound). A mean of magnitudes would have given 34.78/32.28 = 1.08, "regular"."""
+    text = BOX_90x60.replace('x = { "A" = 0, "B" = 90 }', 'x = { "A" = 40, "B" = 50 }')
+    text = text.replace('stiffness = "4.5 kip/in"', 'stiffness = "10 kip/in"')
+    text = text.replace('stiffness = "5.5 kip/in"', 'stiffness = "10 kip/in"')
+    text = text.replace('stiffness = "4 kip/in"', 'stiffness = "0.1 kip/in"')
+    plan = plan_from(text)
+    item = _torsional(analyze(plan, semirigid=False).irregularities)
+    theta = 100 * 4.5 / 680
+    ends = np.array([5 - 45 * theta, 5 + 45 * theta])
+    assert item.type == "1b"
+    assert item.values["ratio"] == pytest.approx(np.abs(ends).max() / ends.mean(), abs=1e-4)
+    assert item.values["Ax"] == 3.0

@@ -115,6 +115,8 @@ def torsional_irregularity_12_3_1(ratio: float) -> str | None:
 def torsional_amplification_12_8_4_3(delta_max: float, delta_avg: float) -> float:
     """§12.8.4.3, Eq. 12.8-14: Ax = (δmax / (1.2·δavg))², not less than 1.0 nor more
     than 3.0 (δ in any one length unit, computed with Ax = 1)."""
+    if delta_avg <= 0:  # rotation dominates: the bound governs
+        return 3.0
     return float(min(3.0, max(1.0, (delta_max / (1.2 * delta_avg)) ** 2)))
 
 
