@@ -14,7 +14,7 @@ from planshear.loads import expand_load_cases
 from planshear.postprocess.irregularity import detect_irregularities, reentrant_corners
 from planshear.run import analyze
 
-from conftest import FT, INCH
+from conftest import FT, INCH, end_walls, rectangle_plan
 
 
 def _box(k_b: str = "5.5 kip/in", load_extra: str = "", extra: str = "", mesh: bool = False) -> str:
@@ -307,3 +307,32 @@ def test_ends_moving_apart_are_extreme_torsion(plan_from):
     assert item.type == "1b"
     assert item.values["ratio"] == pytest.approx(np.abs(ends).max() / ends.mean(), abs=1e-4)
     assert item.values["Ax"] == 3.0
+
+
+def test_semirigid_reads_the_end_wall_drifts(plan_from):
+    """Semi-rigid measure: with full-length walls on the two end edges, the diaphragm's
+    displacement there is those walls' drift F/k (statics of the spring supports), taken here
+    from the model's own wall forces. A stiff interior wall line makes the distribution
+    indeterminate, so the soft diaphragm (Ga = 5 kip/in) gives a ratio other than the rigid
+    one, as the semi-rigid model should. Tolerance 1e-3: the measure averages the edge's
+    mesh nodes while the wall force integrates the spring along it (about 2e-4 here)."""
+    walls = end_walls() + textwrap.dedent("""
+        [[wall]]
+        id = "WM"
+        line = "M"
+        from = 0
+        to = 50
+        stiffness = "200 kip/in"
+        """)
+    grid = 'x = { "1" = 0, "M" = 30, "2" = 100 }\ny = { "A" = 0, "B" = 50 }'
+    text = rectangle_plan(walls=walls, grid=grid, extra="[mesh]\nsize = 10\n",
+                          material='{ kind = "wood-panel", Ga = "5 kip/in" }')
+    plan = plan_from(text.replace('directions = ["x", "y"]', 'directions = ["y"]\nsdc = "D"'))
+    results = analyze(plan)
+    semi = _torsional(results.irregularities, "semirigid")
+    drifts = results.methods["semirigid"].cases[semi.values["case"]].wall_drifts
+    assert semi.values["delta_end_low"] == pytest.approx(drifts["W1"], rel=1e-3)
+    assert semi.values["delta_end_high"] == pytest.approx(drifts["W2"], rel=1e-3)
+    rigid = _torsional(results.irregularities, "rigid")
+    assert abs(semi.values["ratio"] - rigid.values["ratio"]) > 0.05
+    assert semi.type == "1b" and semi.applies is True  # 1.55 here; classified semi-rigid, SDC D
