@@ -93,7 +93,8 @@ def reentrant_corners(outline: np.ndarray) -> list[dict]:
     """Every re-entrant (reflex) corner of a counter-clockwise ``outline`` (m) with the plan's
     projections beyond it: along x, from the corner to the plan's extreme on the side where
     the notch opens, likewise along y; the notch side is taken from the outward bisector of
-    the two edges at the corner (exact for edges parallel to x and y)."""
+    the two edges at the corner (exact for edges parallel to x and y; where the notch opens
+    straight along one axis, the larger of the two sides is taken)."""
     points = outline[:-1] if np.allclose(outline[0], outline[-1]) else outline
     before = points - np.roll(points, 1, axis=0)
     after = np.roll(points, -1, axis=0) - points
@@ -104,7 +105,10 @@ def reentrant_corners(outline: np.ndarray) -> list[dict]:
         # Into the notch: at a reflex corner of a counter-clockwise outline the outside lies
         # ahead along the outgoing edge and back along the incoming one.
         notch = after[i] / np.linalg.norm(after[i]) - before[i] / np.linalg.norm(before[i])
-        projection = np.where(notch > 0, high - points[i], points[i] - low)
+        beyond_high, beyond_low = high - points[i], points[i] - low
+        # A notch opening straight along one axis (zero component): take the larger side.
+        projection = np.where(notch > 1e-9, beyond_high,
+                              np.where(notch < -1e-9, beyond_low, np.maximum(beyond_high, beyond_low)))
         corners.append({"corner": points[i].copy(), "projection_x": float(projection[0]),
                         "projection_y": float(projection[1])})
     return corners
