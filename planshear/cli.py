@@ -175,6 +175,7 @@ def _print_results(results: Results, out: Path) -> None:
                       f"ADVE {span['ADVE']:.3f} {units['displacement']}, ratio {ratio}")
             for note in check.get("notes", ()):
                 print(f"    note: {note}")
+    _print_irregularities(doc)
     methods = list(doc["assumptions"])
     envelope = doc.get("envelope") or {}
     print(f"\nwall forces ({force}): largest magnitude over all cases; design = envelope of allowed assumptions")
@@ -226,6 +227,41 @@ def _print_results(results: Results, out: Path) -> None:
                 print(f"  {group}: " + "; ".join(cells))
     print(f"\nresults written to {out}/")
     print(CAUTION)
+
+
+def _print_irregularities(doc: dict) -> None:
+    """ASCE 7-16 Table 12.3-1 checks: found ones with their consequence, the rest in a line each."""
+    items = doc.get("irregularities") or []
+    if not items:
+        return
+    d = doc["units"]["displacement"]
+    print("\nhorizontal irregularities (ASCE 7-16 Table 12.3-1; consequences not yet applied to the forces)")
+    for item in items:
+        v = item["values"]
+        where = " ".join(filter(None, [item.get("method"), item.get("load") and f"load {item['load']}",
+                                       item.get("axis") and f"along {item['axis']}"]))
+        head = f"  Type {item['type']} {item['name']}" + (f" [{where}]" if where else "")
+        if "delta_max" in v:
+            ratio = "unbounded (δavg ≤ 0)" if v["ratio"] is None else f"{v['ratio']:.3f}"
+            head += f": δmax/δavg = {ratio} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
+        elif "share_x" in v:
+            head += f": projections {100 * v['share_x']:.1f} % / {100 * v['share_y']:.1f} % of the plan dimensions"
+        elif "open_area" in v:
+            head += f": open area {100 * v['ratio']:.1f} % of the gross enclosed area"
+        state = {True: "PRESENT", False: "not present", None: "not checked"}[item["present"]]
+        print(f"{head} — {state}")
+        if item["present"] is None:
+            print(f"    {item['consequence']}")
+        elif item["present"] is False:
+            continue
+        elif item["applies"] is False:
+            print(f"    does not apply: {item['consequence']}")
+        else:
+            sections = ", ".join(x if x.startswith("Table") else f"§{x}" for x in item["sections"])
+            text = (f"    applies: {sections}" if item["applies"] else
+                    f"    no sdc given; by SDC Table 12.3-1 refers to {sections}")
+            print(text + (f"; Ax = {v['Ax']:.3f} on the ±ecc cases" if "Ax" in v and "12.8.4.3" in item["sections"]
+                          else "") + " (see results.json or the report)")
 
 
 def _print_walls_along_chords(doc: dict) -> None:

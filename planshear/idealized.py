@@ -264,10 +264,11 @@ def rigid_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:
         s_index = 0 if case.axis == "y" else 1
         s_coord = plan.outline[:, s_index]
         ends = np.array([along[s_coord <= s_coord.min() + 1e-9 * size].mean(), along[s_coord >= s_coord.max() - 1e-9 * size].mean()])
-        ratio = float(np.max(np.abs(ends)) / np.mean(np.abs(ends))) if np.mean(np.abs(ends)) > 0 else 1.0
+        # Algebraic mean (ends moving apart mean rotation dominates; see postprocess/irregularity.py).
+        ratio = round(float(np.max(np.abs(ends)) / np.mean(ends)), 4) if np.mean(ends) > 0 else None
         extra = {
             "rigid_body_motion": {"u": float(u), "v": float(v), "rotation": float(theta)},
-            "torsional_ratio": round(ratio, 4),
+            "torsional_ratio": ratio,  # None: δavg ≤ 0, unbounded
         }
         results[case.name] = _case_from_analogy(plan, case, forces, main, transverse, max_disp, residual, extra,
                                                 field_, reactions)

@@ -24,6 +24,7 @@ import shapely
 from shapely.geometry import LineString, Point, Polygon
 
 from .code import DEFAULT_EDITION, EDITIONS
+from .code.asce7_16 import SDCS
 from .errors import PlanError, UnstablePlanError
 from .schema import schema_problems
 from .stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
@@ -194,6 +195,7 @@ class Load:
     collector_overstrength: float = 1.0
     light_frame: bool = False  # braced entirely by light-frame shear walls (ASCE 7-16 §12.10.2.1 Exception 2)
     drift: tuple[float, float, float, float] | None = None  # (Cd, Ie, story height m, allowable Δa/hsx)
+    sdc: str | None = None  # Seismic Design Category "A"…"F" (seismic loads), for Table 12.3-1
 
 
 @dataclass(frozen=True)
@@ -210,6 +212,8 @@ class ClassificationFlags:
     idealized_flexible: bool = False  # ASCE 7-16 §12.3.1.1 conditions met
     idealized_rigid: bool = False  # ASCE 7-16 §12.3.1.2 conditions met
     sensitivity: tuple[float, ...] = ()  # factors on diaphragm stiffness, e.g. (0.5, 2.0)
+    # Effective diaphragm stiffness of the adjacent story / this one's (Table 12.3-1 Type 3), if stated.
+    adjacent_stiffness_ratio: float | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -789,7 +793,7 @@ class _PlanBuilder:
                 self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
                 ecc = None
             seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame",
-                            "drift"}
+                            "drift", "sdc"}
             if kind == "edge":
                 misplaced = sorted(seismic_keys & set(entry))
                 if misplaced:
@@ -883,6 +887,10 @@ class _PlanBuilder:
                 if any(v is None for v in values):
                     continue
                 fpx = tuple(values)
+            sdc = entry.get("sdc")
+            if sdc is not None and sdc not in SDCS:
+                self.problem(where + ".sdc", f'must be a Seismic Design Category "A" to "F", got "{sdc}"')
+                continue
             if area_weight is None or ecc is None or omega is None or (has_total and total is None):
                 continue
             if area_weight == 0 and not zone_weights and not line_weights and not point_weights:
@@ -893,7 +901,7 @@ class _PlanBuilder:
                      line_weights=tuple(line_weights), point_weights=tuple(point_weights),
                      point_footprints=tuple(footprints), total=total, fpx=fpx,
                      eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)),
-                     drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx))
+                     drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx), sdc=sdc)
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')
@@ -964,7 +972,13 @@ class _PlanBuilder:
         for f in factors:
             if not (math.isfinite(f) and f > 0):
                 self.problem("classification.sensitivity", f"factors on diaphragm stiffness must be positive, got {f}")
-        return ClassificationFlags(bool(raw.get("idealized_flexible", False)), bool(raw.get("idealized_rigid", False)), factors)
+        adjacent = raw.get("adjacent_stiffness_ratio")
+        if adjacent is not None and not (math.isfinite(adjacent) and adjacent > 0):
+            self.problem("classification.adjacent_stiffness_ratio", "is the effective diaphragm stiffness of the adjacent "
+                         f"story divided by this one's and must be positive, e.g. 0.4; got {adjacent}")
+            adjacent = None
+        return ClassificationFlags(bool(raw.get("idealized_flexible", False)), bool(raw.get("idealized_rigid", False)), factors,
+                                   float(adjacent) if adjacent is not None else None)
 
 
 #: Bytes of memory per degree of freedom assumed for assembly + sparse factorization

@@ -88,7 +88,9 @@ LIMITATIONS_TEXT = [
     "One diaphragm level per plan; vertical irregularities, transfer forces and load combinations are not formed.",
     "The flexible method gives no force to walls on skewed lines.",
     "Peaks of unit shear at re-entrant corners and wall ends depend on the mesh (stress concentrations).",
-    "Code checks are limited to the flexibility classification; capacities are not checked.",
+    "Code checks are limited to the flexibility classification and the horizontal irregularities of ASCE 7-16 "
+    "Table 12.3-1 Types 1a, 1b, 2 and 3 (detected and reported, not yet applied to the forces); capacities are "
+    "not checked.",
 ]
 
 
@@ -192,6 +194,13 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
                          _at(span.get("MDD_at")), span.get("MDD_local"), _at(span.get("MDD_local_at"))])
     tables["classification"] = (["load along", "case", "span", f"MDD ({d})", f"ADVE ({d})", "MDD/ADVE", "behaviour",
                                  "MDD at (x, y)", f"local nodal peak ({d}), not used", "peak at (x, y)"], rows)
+    tables["irregularities"] = (
+        ["type", "irregularity", "method", "load", "along", "present", "measured", "applies", "consequence"],
+        [[i["type"], i["name"], i.get("method", ""), i.get("load", ""), i.get("axis", ""),
+          {True: "yes", False: "no", None: "not checked"}[i["present"]], _measured(i, d),
+          {True: "yes", False: "no", None: "SDC not given"}[i["applies"]], i["consequence"]]
+         for i in doc.get("irregularities", [])],
+    )
     envelope = doc.get("envelope") or {"walls": {}, "collectors": {}, "chords": {}}
     methods = list(doc["assumptions"])
     rows = []
@@ -271,6 +280,22 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
             rows.append([m, case_name, case["applied_force"], case["equilibrium_residual"]])
     tables["residuals"] = (["assumption", "case", f"applied force ({f})", "relative residual"], rows)
     return tables
+
+
+def _measured(item: dict, d: str) -> str:
+    """Short text of an irregularity's measured values (``d``: displacement unit)."""
+    v = item["values"]
+    if "delta_max" in v:
+        ratio = "unbounded (δavg ≤ 0)" if v["ratio"] is None else f"{v['ratio']:.3f}"
+        text = f"δmax/δavg = {ratio} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
+        return text + (f"; Ax = {v['Ax']:.3f}" if "Ax" in v else "")
+    if "share_x" in v:
+        return f"projections {100 * v['share_x']:.1f} % and {100 * v['share_y']:.1f} % of the plan dimensions"
+    if "open_area" in v:
+        return f"open area {100 * v['ratio']:.1f} % of the gross enclosed area"
+    if "change" in v:
+        return f"stated stiffness ratio {v['adjacent_stiffness_ratio']:g}, change {100 * v['change']:.0f} %"
+    return "no re-entrant corner" if v.get("corners") == 0 else "-"
 
 
 def transfer_tables(doc: dict, cases: set[str] | None = None) -> dict[str, tuple[list[str], list[list]]]:
@@ -464,6 +489,15 @@ def _plain_rows(headers: list[str], rows: list[list]) -> list[str]:
     return ["  ".join(str(c).ljust(w)[:40] for c, w in zip(row, widths, strict=True)) for row in cells]
 
 
+def _irregularity_lines(headers: list[str], rows: list[list]) -> list[str]:
+    """Plain lines of the irregularity table: the short columns, then each consequence wrapped."""
+    lines = _plain_rows(headers[:6] + headers[7:8], [row[:6] + row[7:8] for row in rows]) + [""]
+    for row in rows:
+        where = " ".join(str(c) for c in row[2:5] if c)
+        lines += _wrap(f"Type {row[0]} {row[1]}" + (f" [{where}]" if where else "") + f": {row[6]} — {row[8]}", 110)
+    return lines
+
+
 def write_review_package(folder: Path, results, doc: dict) -> list[str]:
     """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``."""
     written = write_tables(folder, doc)
@@ -487,6 +521,7 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("cases", "Load cases"),
                            ("classification", "Flexibility check"),
                            ("span_deflection", "Span deflection by beam theory (flexible method)"),
+                           ("irregularities", "Horizontal irregularities, ASCE 7-16 Table 12.3-1 (not yet applied to the forces)"),
                            ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("engineer_envelope", "Engineer-chosen envelope (not the code check)"),
@@ -498,6 +533,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
             headers, rows = tables[key]
             if key in ("engineer_envelope", "drift") and not rows:
+                continue
+            if key == "irregularities":  # the consequence is a sentence: wrapped below each row
+                sections.append((title, _irregularity_lines(headers, rows)))
                 continue
             sections.append((title, _plain_rows(headers, rows)))
         _text_pages(pdf, sections)
@@ -512,6 +550,14 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
     (folder / "report.html").write_text(_html(doc, tables, figures), encoding="utf-8")
     written.append("report.html")
     return written
+
+
+IRREGULARITY_TEXT = (
+    "Detected and reported only: the consequences listed (torsional amplification Ax, the 25 % increase of "
+    "§12.3.3.4) are not yet applied to the forces in this report. Torsion: δ at the plan's two extreme edges "
+    "across the load, worst of the accidental-torsion cases; re-entrant corners from the outline; open area = "
+    "openings / area enclosed by the outline. The SDC application column is from memory of the standard."
+)
 
 
 def _not_run_lines(doc: dict) -> list[str]:
@@ -574,6 +620,8 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
         section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")
                 + "<p>The same check by beam theory on the flexible method's simple spans (chord bending and "
                 "sheathing shear; no finite-element model):</p>" + tab("span_deflection")),
+        section("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", f"<p>{_esc(IRREGULARITY_TEXT)}</p>"
+                + tab("irregularities")),
         section("Wall forces", "<p>Largest magnitude over the cases of each assumption; design = envelope over "
                 "the assumptions the code allows for the load direction.</p>" + tab("walls")),
         section("Collectors", tab("collectors") + figs(figures["collectors"])),

@@ -17,6 +17,7 @@ __all__ = [
     "method_to_json",
     "transfer_to_json",
     "classification_to_json",
+    "irregularity_to_json",
     "envelope_to_json",
     "comparison_to_json",
 ]
@@ -384,4 +385,32 @@ def comparison_to_json(table: dict, units: OutputUnits) -> dict:
                 key: (None if value is None else (_r(value, 4) if "/" in key else _r(units.force_out(value))))
                 for key, value in values.items()
             }
+    return out
+
+
+def irregularity_to_json(item, units: OutputUnits) -> dict:
+    """One ASCE 7-16 Table 12.3-1 check (a :class:`planshear.postprocess.irregularity.Irregularity`)
+    in output units: lengths and displacements as the plan's, areas in length units²."""
+    from .postprocess.irregularity import VALUE_KINDS  # that module imports this one
+
+    convert = {
+        "displacement": lambda v: _r(units.displacement_out(v)),
+        "length": lambda v: _r(units.length_out(v)),
+        "area": lambda v: _r(units.length_out(units.length_out(v))),
+    }
+    values = {}
+    for key, value in item.values.items():
+        kind = VALUE_KINDS.get(key)
+        if kind is None:
+            values[key] = value
+        elif np.ndim(value):
+            values[key] = [convert[kind](float(v)) for v in value]
+        else:
+            values[key] = convert[kind](float(value))
+    out = {"type": item.type, "name": item.name, "clause": item.clause, "present": item.present,
+           "values": values, "applies": item.applies, "sections": list(item.sections),
+           "consequence": item.consequence}
+    for key in ("method", "load", "axis"):
+        if getattr(item, key) is not None:
+            out[key] = getattr(item, key)
     return out

@@ -22,12 +22,14 @@ from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
 from .postprocess.drift import DriftCheck, drift_checks
 from .postprocess.envelope import Envelope, build_envelope, compare_walls
+from .postprocess.irregularity import Irregularity, detect_irregularities
 from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
     classification_to_json,
     comparison_to_json,
     envelope_to_json,
+    irregularity_to_json,
     method_to_json,
 )
 from .semirigid import SemirigidRun, semirigid_analysis
@@ -58,6 +60,7 @@ class Results:
     equilibrium: dict[str, float] = field(default_factory=dict)  # assumption → largest imbalance
     engineer_envelope: Envelope | None = None  # over the assumptions of [design] envelope
     drift: tuple[DriftCheck, ...] = ()  # ASCE 7-16 §12.8.6 / §12.12.1, loads with drift inputs
+    irregularities: tuple[Irregularity, ...] = ()  # ASCE 7-16 Table 12.3-1 checks
 
     @property
     def units(self) -> OutputUnits:
@@ -90,6 +93,7 @@ class Results:
                 **envelope_to_json(self.engineer_envelope, units),
             },
             "comparison": comparison_to_json(compare_walls(self.methods), units),
+            "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "
                          "(with the accidental torsion for rigid and semi-rigid); relative to F and F × plan size",
@@ -214,8 +218,9 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     if plan.design_envelope:
         engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
     drift = tuple(drift_checks(plan, methods, cases, run))
+    irregularities = detect_irregularities(plan, cases, methods, run.solution if run else None, classification)
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
-                   engineer, drift)
+                   engineer_envelope=engineer, drift=drift, irregularities=irregularities)
 
 
 def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:

@@ -8,8 +8,29 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["EDITION", "FpxValues", "fpx_12_10_1_1", "CollectorRule", "collector_rule_12_10_2_1",
-           "amplified_displacement_12_8_6", "drift_within_limit_12_12_1"]
+__all__ = [
+    "EDITION",
+    "FpxValues",
+    "fpx_12_10_1_1",
+    "CollectorRule",
+    "collector_rule_12_10_2_1",
+    "amplified_displacement_12_8_6",
+    "drift_within_limit_12_12_1",
+    "TORSIONAL_1A",
+    "TORSIONAL_1B",
+    "REENTRANT_PROJECTION",
+    "OPEN_AREA_LIMIT",
+    "STIFFNESS_CHANGE_LIMIT",
+    "SDC_APPLICATION",
+    "SECTION_TEXT",
+    "SDCS",
+    "torsional_irregularity_12_3_1",
+    "torsional_amplification_12_8_4_3",
+    "reentrant_corner_type_2",
+    "diaphragm_discontinuity_type_3",
+    "stiffness_change_type_3",
+    "sections_applying",
+]
 
 EDITION = "ASCE 7-16"
 
@@ -94,3 +115,95 @@ def drift_within_limit_12_12_1(delta_x: float, story_height: float, allowable_ra
     exceed Δa = (allowable ratio)·hsx; the ratio is the engineer's pick from the table
     (risk category and structure type)."""
     return abs(delta_x) <= allowable_ratio * story_height
+
+
+# --- Table 12.3-1, horizontal structural irregularities -------------------------------------
+
+#: Type 1a torsional irregularity: δmax/δavg above this, accidental torsion included.
+TORSIONAL_1A = 1.2
+#: Type 1b extreme torsional irregularity.
+TORSIONAL_1B = 1.4
+#: Type 2 re-entrant corner: both projections beyond the corner above this share of the
+#: plan dimension in their direction.
+REENTRANT_PROJECTION = 0.15
+#: Type 3 diaphragm discontinuity: cut-out or open area above this share of the gross
+#: enclosed diaphragm area ...
+OPEN_AREA_LIMIT = 0.50
+#: ... or a change of effective diaphragm stiffness of more than this from one story to the next.
+STIFFNESS_CHANGE_LIMIT = 0.50
+
+SDCS = ("A", "B", "C", "D", "E", "F")
+
+#: Table 12.3-1, column "Reference Section" → "Seismic Design Category Application", for
+#: the types planshear detects. FROM MEMORY of ASCE 7-16 (the standard's text was not at
+#: hand); the Ax row (§12.8.4.3, C–F for 1a) agrees with the restatement in Taly (2010)
+#: Eq. (7.73) (VALIDATION.md 1.8). Check against the standard before relying on it.
+SDC_APPLICATION: dict[str, dict[str, str]] = {
+    "1a": {"12.3.3.4": "DEF", "12.7.3": "BCDEF", "12.8.4.3": "CDEF", "12.12.1": "CDEF",
+           "Table 12.6-1": "DEF", "16.3.4": "BCDEF"},
+    "1b": {"12.3.3.1": "EF", "12.3.3.4": "D", "12.3.4.2": "D", "12.7.3": "BCD", "12.8.4.3": "CD",
+           "12.12.1": "CD", "Table 12.6-1": "D", "16.3.4": "BCD"},
+    "2": {"12.3.3.4": "DEF", "Table 12.6-1": "DEF"},
+    "3": {"12.3.3.4": "DEF", "Table 12.6-1": "DEF"},
+}
+
+#: What each reference section requires, in short (paraphrased, from memory).
+SECTION_TEXT: dict[str, str] = {
+    "12.3.3.1": "§12.3.3.1: Type 1b is not permitted in SDC E or F",
+    "12.3.3.4": ("§12.3.3.4: increase the §12.10.1.1 design forces by 25 % for connections of diaphragms to "
+                 "vertical elements and to collectors, and for collectors and their connections (forces "
+                 "calculated with the overstrength factor Ω0, §12.4.3, need not be increased)"),
+    "12.3.4.2": "§12.3.4.2: the redundancy factor ρ = 1.0 option is limited (see the clause)",
+    "12.7.3": "§12.7.3: a three-dimensional structural model is required",
+    "12.8.4.3": "§12.8.4.3: multiply the accidental torsion by Ax = (δmax/(1.2·δavg))², 1.0 ≤ Ax ≤ 3.0",
+    "12.12.1": "§12.12.1: story drift is the largest difference of deflections along any edge of the story",
+    "Table 12.6-1": "Table 12.6-1: the equivalent lateral force procedure may not be permitted (see the table)",
+    "16.3.4": "§16.3.4: response history analysis needs a three-dimensional model",
+}
+
+
+def torsional_irregularity_12_3_1(ratio: float) -> str | None:
+    """Table 12.3-1 Types 1a / 1b from ``ratio`` = δmax/δavg (story drift at the two ends,
+    accidental torsion included): "1b" above 1.4, "1a" above 1.2, else None."""
+    if ratio > TORSIONAL_1B:
+        return "1b"
+    if ratio > TORSIONAL_1A:
+        return "1a"
+    return None
+
+
+def torsional_amplification_12_8_4_3(delta_max: float, delta_avg: float) -> float:
+    """§12.8.4.3, Eq. 12.8-14: Ax = (δmax / (1.2·δavg))², not less than 1.0 nor more
+    than 3.0 (δ in any one length unit, computed with Ax = 1)."""
+    if delta_avg <= 0:  # rotation dominates: the bound governs
+        return 3.0
+    return float(min(3.0, max(1.0, (delta_max / (1.2 * delta_avg)) ** 2)))
+
+
+def reentrant_corner_type_2(projection_x: float, dimension_x: float, projection_y: float,
+                            dimension_y: float) -> bool:
+    """Table 12.3-1 Type 2: both plan projections beyond a re-entrant corner greater than
+    15 % of the plan dimension in their direction (lengths in one unit)."""
+    return (projection_x > REENTRANT_PROJECTION * dimension_x
+            and projection_y > REENTRANT_PROJECTION * dimension_y)
+
+
+def diaphragm_discontinuity_type_3(open_area: float, gross_area: float) -> bool:
+    """Table 12.3-1 Type 3, open-area part: cut-out or open area greater than 50 % of the
+    gross enclosed diaphragm area (areas in one unit)."""
+    return open_area > OPEN_AREA_LIMIT * gross_area
+
+
+def stiffness_change_type_3(adjacent_ratio: float) -> tuple[bool, float]:
+    """Table 12.3-1 Type 3, stiffness part, from ``adjacent_ratio`` = effective diaphragm
+    stiffness of the adjacent story / this one's. Returns (irregular, change) with the
+    change taken relative to the smaller of the two stiffnesses, the stricter reading of
+    "more than 50 % from one story to the next" (irregular below 2/3 or above 1.5)."""
+    change = max(adjacent_ratio, 1.0 / adjacent_ratio) - 1.0
+    return change > STIFFNESS_CHANGE_LIMIT, change
+
+
+def sections_applying(irregularity_type: str, sdc: str) -> list[str]:
+    """Reference sections of Table 12.3-1 that apply to ``irregularity_type`` ("1a",
+    "1b", "2", "3") in Seismic Design Category ``sdc`` ("A"…"F"), in table order."""
+    return [section for section, categories in SDC_APPLICATION[irregularity_type].items() if sdc in categories]
