@@ -139,6 +139,8 @@ def _print_check(summary: dict) -> None:
             line += f"; Fpx by ASCE 7-16 Eq. {load['fpx_equation']} ({values} {force})"
         elif load["kind"] == "seismic":
             line += " (total given in the plan)"
+        if "fx" in load:
+            line += f"; walls and drifts at Fx = {load['fx']:.5g} {force}"
         print(line)
     print(f"  load cases: {', '.join(summary['cases'])}")
 
@@ -178,14 +180,15 @@ def _print_results(results: Results, out: Path) -> None:
     _print_irregularities(doc)
     methods = list(doc["assumptions"])
     envelope = doc.get("envelope") or {}
-    print(f"\nwall forces ({force}): largest magnitude over all cases; design = envelope of allowed assumptions")
+    print(f"\nwall forces ({force}): largest magnitude over all cases (at Fx where a seismic load gives fx); "
+          "design = envelope of allowed assumptions")
     header = "  " + "wall".ljust(8) + "".join(m.rjust(11) for m in methods) + "design".rjust(11) + "  governs"
     print(header)
     for wall in doc["plan"]["wall_stiffness"]:
         cells = []
         for m in methods:
-            values = [c["walls"][wall] for c in doc["assumptions"][m]["cases"].values()]
-            cells.append(f"{max(values, key=abs):11.2f}" if values else " " * 11)
+            largest = envelope.get("walls", {}).get(wall, {}).get(m)
+            cells.append(f"{largest['value']:11.2f}" if largest else " " * 11)
         design = envelope.get("walls", {}).get(wall, {}).get("design")
         tail = f"{design['value']:11.2f}  {design['assumption']} {design['case']}" if design else ""
         print("  " + wall.ljust(8) + "".join(cells) + tail)

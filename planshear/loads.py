@@ -109,6 +109,14 @@ class LoadCase:
     assumptions: tuple[str, ...]  # which methods use the case
     #: ASCE 7-16 §12.10.2.1: design collector force = rule.factor × force at this case's force.
     collector_rule: CollectorRule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
+    #: Story force Fx for the vertical elements (N) when it differs from ``force`` (the
+    #: diaphragm force Fpx or the given total): wall forces and drifts scale by Fx/force.
+    story_force: float | None = None
+
+    @property
+    def wall_factor(self) -> float:
+        """Factor from the analyzed (diaphragm) force to the vertical elements' force Fx."""
+        return 1.0 if self.story_force is None else self.story_force / self.force
 
     @property
     def direction(self) -> np.ndarray:
@@ -341,12 +349,14 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
             weight = seismic_weight(plan, load)
             fpx = fpx_12_10_1_1(weight.total, *load.fpx) if load.fpx is not None else None
             force = fpx.value if fpx is not None else float(load.total)
-            rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame)
+            rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame, load.fx)
+            story_force = load.fx
             base_total = weight.total
             center = weight.center
         else:
             base_total, force, center = 0.0, 0.0, None
             rule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
+            story_force = None
         for axis in load.directions:
             if load.kind == "seismic":
                 # A seismic field reverses exactly, so only +axis is analyzed.
@@ -369,7 +379,8 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                 label = f"{load.name}{'+' if sign > 0 else '-'}{axis}"
                 cases.append(
                     LoadCase(label, load.name, load.kind, axis, sign, 0, case_force, field, case_center,
-                             0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"), rule)
+                             0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"), rule,
+                             story_force)
                 )
                 if eccentricity <= 0:
                     continue
@@ -381,6 +392,6 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                     cases.append(
                         LoadCase(f"{label}{'+' if ecc_sign > 0 else '-'}ecc", load.name, load.kind, axis, sign,
                                  ecc_sign, case_force, field, case_center, eccentricity, torsion,
-                                 load.collector_overstrength, ("rigid", "semirigid"), rule)
+                                 load.collector_overstrength, ("rigid", "semirigid"), rule, story_force)
                     )
     return cases

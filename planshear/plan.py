@@ -194,6 +194,7 @@ class Load:
     eccentricity: float = 0.05
     collector_overstrength: float = 1.0
     light_frame: bool = False  # braced entirely by light-frame shear walls (ASCE 7-16 §12.10.2.1 Exception 2)
+    fx: float | None = None  # N, story force Fx for the vertical elements (ELF, §12.8.3); None: the case force
     drift: tuple[float, float, float, float] | None = None  # (Cd, Ie, story height m, allowable Δa/hsx)
     sdc: str | None = None  # Seismic Design Category "A"…"F" (seismic loads), for Table 12.3-1
 
@@ -793,7 +794,7 @@ class _PlanBuilder:
                 self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
                 ecc = None
             seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame",
-                            "drift", "sdc"}
+                            "drift", "sdc", "fx"}
             if kind == "edge":
                 misplaced = sorted(seismic_keys & set(entry))
                 if misplaced:
@@ -901,7 +902,8 @@ class _PlanBuilder:
                      line_weights=tuple(line_weights), point_weights=tuple(point_weights),
                      point_footprints=tuple(footprints), total=total, fpx=fpx,
                      eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)),
-                     drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx), sdc=sdc)
+                     drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx), sdc=sdc,
+                     fx=self.quantity(entry["fx"], FORCE, where + ".fx") if "fx" in entry else None)
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')

@@ -316,8 +316,9 @@ def drift_to_json(checks: tuple[DriftCheck, ...], units: OutputUnits) -> dict | 
 
     return {
         "clause": "ASCE 7-16 §12.8.6 (Eq. 12.8-15, δx = Cd·δxe/Ie), §12.12.1 and Table 12.12-1 (allowable as given)",
-        "note": "elastic displacements from the case force (Fpx or the given total), not a separate story force Fx; "
-                "lines: the diaphragm's largest displacement on the line in the semi-rigid model (§12.12.4)",
+        "note": "walls: elastic drifts at the story force Fx where the load gives fx, else at the case force; "
+                "lines: the diaphragm's largest displacement on the line in the semi-rigid model at the case force "
+                "(§12.12.4)",
         "walls": {c.name: entry(c) for c in checks if c.kind == "wall"},
         "lines": {c.name: entry(c) for c in checks if c.kind == "line"},
     }
@@ -384,6 +385,13 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
             else:
                 entry["fpx_equation"] = None
                 entry["force_source"] = "total given in the plan (not Fpx from ASCE 7-16 §12.10.1.1)"
+            diaphragm = "Fpx" if load.fpx is not None else "the given total"
+            if load.fx is not None:
+                entry["fx"] = round(units.force_out(load.fx), 6)
+                entry["force_basis"] = {"walls, line reactions, wall drifts": "Fx (fx given)",
+                                        "diaphragm shears, chords, collectors, classification": diaphragm}
+            else:
+                entry["force_basis"] = {"everything": diaphragm + " (no separate story force fx given)"}
         forces = {c.axis: c.force for c in cases if c.load == load.name}
         entry["force"] = {axis: round(units.force_out(f), 6) for axis, f in forces.items()}
         entry["collector_overstrength"] = load.collector_overstrength

@@ -202,6 +202,7 @@ PLAN_SCHEMA: dict = {
                     "eccentricity": NUMBER,
                     "collector_overstrength": NUMBER,
                     "light_frame": {"type": "boolean"},
+                    "fx": QUANTITY,
                     "drift": {
                         "type": "object",
                         "required": ["Cd", "story_height", "allowable"],

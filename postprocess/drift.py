@@ -5,8 +5,9 @@ elastic drift (force / stiffness) under every assumption and case, and in the se
 model the diaphragm's largest displacement along the load on every grid line parallel to
 the load (what elements on that line must follow, §12.12.4), amplified by Cd/Ie and
 compared with the allowable drift ratio × story height. The elastic values come from the
-case force (Fpx or the given total): a separate story force Fx is not taken yet, so the
-drifts are conservative where Fpx > Fx. Units SI.
+case force scaled to the story force Fx for the walls where the load gives ``fx``; the
+diaphragm's displacement on the lines stays at the case force (Fpx or the given total).
+Units SI.
 """
 
 from __future__ import annotations
@@ -62,7 +63,7 @@ def drift_checks(plan: Plan, methods: dict, cases: tuple[LoadCase, ...] | list[L
             if case.load not in loads:
                 continue
             Cd, Ie, height, allowable = loads[case.load].drift
-            for wall_id, drift in result.wall_drifts.items():
+            for wall_id, drift in ((w, d * case.wall_factor) for w, d in result.wall_drifts.items()):
                 keep(DriftCheck("wall", wall_id, assumption, case_name, drift,
                                 amplified_displacement_12_8_6(drift, Cd, Ie), height, allowable))
     if semirigid is not None:

@@ -126,7 +126,9 @@ def build_envelope(
             design = assumption in allowed[case.axis]
             # ASCE 7-16 §12.10.2.1 (overstrength, its cap and exceptions) as a factor on the case's force.
             omega = case.collector_rule.factor
-            for wall_id, force in result.wall_forces.items():
+            # Walls and line reactions are the vertical elements' forces: Fx where the load gives it.
+            to_fx = case.wall_factor
+            for wall_id, force in ((w, f * to_fx) for w, f in result.wall_forces.items()):
                 slot = walls.setdefault(wall_id, {"design": None, "information": None})
                 slot["information"] = better(slot["information"], force, assumption, case_name)
                 slot[assumption] = better(slot.get(assumption), force, assumption, case_name)
@@ -135,10 +137,10 @@ def build_envelope(
             for name, line in result.lines.items():
                 r = reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
-                r["information"] = better(r["information"], line.reaction, assumption, case_name)
+                r["information"] = better(r["information"], to_fx * line.reaction, assumption, case_name)
                 c["information"] = better(c["information"], line.peak, assumption, case_name)
                 if design:
-                    r["design"] = better(r["design"], line.reaction, assumption, case_name)
+                    r["design"] = better(r["design"], to_fx * line.reaction, assumption, case_name)
                     c["design"] = better(c["design"], line.peak, assumption, case_name)
                     c["with_overstrength"] = better(c["with_overstrength"], omega * line.peak, assumption, case_name)
                     extremes(c, line.collector, assumption, case_name)

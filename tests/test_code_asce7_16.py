@@ -108,3 +108,47 @@ def test_amplified_drift_of_the_walls(plan_from):
         assert c["amplified"] == pytest.approx(c["elastic"] * 4.0 / 1.25, rel=1e-9)
         assert c["ratio"] == pytest.approx(abs(c["amplified"]) / 144.0, abs=1e-6)  # rounded in the JSON
         assert c["ok"] == (c["ratio"] <= 0.025)
+
+
+def test_story_force_drives_walls_and_diaphragm_force_the_rest(plan_from):
+    """A seismic load with both the diaphragm force (total = 100 kip, Fpx) and the story force
+    fx = 60 kip: the analysis runs at Fpx (diaphragm shears, chords, collectors); walls,
+    line reactions and wall drifts of the envelope are at Fx = 0.6 × those (linear elastic);
+    results.json says which force drove which result. §12.10.2.1 item 1 (Ω0 × Fx) joins the
+    collector rule: with Ω0 = 2.5 and no Fpx inputs, max(2.5·100, 2.5·60) = 2.5 × the case."""
+    from planshear.run import analyze
+
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "100 kip"
+        fx = "60 kip"
+        directions = ["y"]
+        eccentricity = 0
+        collector_overstrength = 2.5
+        ''')
+    plan = plan_from(rectangle_plan(walls=end_walls(), load=load) + '[classification]\nidealized_flexible = true\n')
+    result = analyze(plan, semirigid=False)
+    flexible = result.methods["flexible"].cases["E+y"]
+    for wall_id in ("W1", "W2"):
+        design = result.envelope.walls[wall_id]["design"]
+        analyzed = result.methods[design.assumption].cases[design.case].wall_forces[wall_id]
+        assert design.value == pytest.approx(0.6 * analyzed, rel=1e-12)
+    assert abs(flexible.wall_forces["W1"]) == pytest.approx(50.0 * 4448.2216152605, rel=1e-9)  # at Fpx
+    basis = result.to_json()["plan"]["loads"]["E"]["force_basis"]
+    assert basis["walls, line reactions, wall drifts"].startswith("Fx")
+    case = next(c for c in result.cases if c.name == "E+y")
+    assert case.collector_rule.factor == pytest.approx(2.5)
+
+
+def test_collector_item_1_governs_when_fx_is_large():
+    """§12.10.2.1 item 1: Ω0 × Fx can exceed Ω0 × Eq. 12.10-1 when Fx > (ΣFi/Σwi)·wpx; the
+    cap of Exception 1 still applies. wpx = 1000, ratio 0.1, SDS 1.0 (Fpx = 0.2·wpx from
+    Eq. 12.10-2), Ω0 = 2, Fx = 0.15·wpx: item 1 = 0.30, item 2 = 0.20, item 3 = 0.20,
+    cap 0.40 → 0.30·wpx governs, factor 1.5 on Fpx."""
+    fpx = fpx_12_10_1_1(1000.0, 1.0, 1.0, 0.1)
+    rule = collector_rule_12_10_2_1(2.0, fpx.value, fpx, False, fx=150.0)
+    assert rule.factor == pytest.approx(1.5)
+    assert rule.governs.startswith("item 1")

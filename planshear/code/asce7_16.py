@@ -76,13 +76,13 @@ class CollectorRule:
 
 
 def collector_rule_12_10_2_1(omega0: float, case_force: float, fpx: FpxValues | None,
-                             light_frame: bool = False) -> CollectorRule:
+                             light_frame: bool = False, fx: float | None = None) -> CollectorRule:
     """§12.10.2.1 (SDC C–F) for collectors, their splices and connections: the largest of
     (2) the overstrength load effect, Ω0 × the forces of Eq. 12.10-1, and (3) the forces of
     Eq. 12.10-2 without overstrength; Exception 1: need not exceed the forces of Eq. 12.10-3
     without overstrength; Exception 2: structures braced entirely by light-frame shear
     walls use the §12.10.1.1 forces (no Ω0). Item (1), Ω0 × the ELF or modal forces of the
-    vertical system, needs the story force and is not evaluated here. Collector forces are
+    vertical system, is evaluated when the story force ``fx`` (N) is given. Collector forces are
     proportional to the diaphragm force, so each term is a factor on N at ``case_force`` (N).
     ``omega0`` ≤ 1 means the engineer did not ask for overstrength (e.g. SDC B): factor 1.
     Item list and exceptions from memory of ASCE 7-16; Exception 1 as quoted from ASCE 7-10
@@ -91,17 +91,22 @@ def collector_rule_12_10_2_1(omega0: float, case_force: float, fpx: FpxValues | 
         return CollectorRule(1.0, 1.0, None, "Exception 2: braced entirely by light-frame shear walls (no Ω0)")
     if omega0 <= 1.0:
         return CollectorRule(1.0, 1.0, None, "no overstrength (Ω0 = 1 given)")
+    item1 = omega0 * fx if fx is not None else 0.0
+    note = "" if fx is not None else "item 1 (Ω0 × ELF forces) not evaluated: no story force fx given"
     if fpx is None:
-        return CollectorRule(omega0, omega0, None, "Ω0 × case force",
+        value = max(omega0 * case_force, item1)
+        return CollectorRule(value / case_force, value / case_force, None,
+                             "item 1: Ω0 × Fx" if item1 > omega0 * case_force else "Ω0 × case force",
                              "Exception 1 cap not evaluated: the load gives a total, not the Fpx inputs")
     item2 = omega0 * fpx.eq_12_10_1
     item3 = fpx.eq_12_10_2
-    uncapped = max(item2, item3)
+    uncapped = max(item1, item2, item3)
     if fpx.eq_12_10_3 < uncapped:
         return CollectorRule(fpx.eq_12_10_3 / case_force, uncapped / case_force, fpx.eq_12_10_3 / case_force,
-                             "Exception 1: capped at the forces of Eq. 12.10-3 without Ω0")
-    governs = "item 2: Ω0 × forces of Eq. 12.10-1" if item2 >= item3 else "item 3: forces of Eq. 12.10-2"
-    return CollectorRule(uncapped / case_force, uncapped / case_force, fpx.eq_12_10_3 / case_force, governs)
+                             "Exception 1: capped at the forces of Eq. 12.10-3 without Ω0", note)
+    governs = ("item 1: Ω0 × Fx (ELF)" if item1 >= max(item2, item3)
+               else "item 2: Ω0 × forces of Eq. 12.10-1" if item2 >= item3 else "item 3: forces of Eq. 12.10-2")
+    return CollectorRule(uncapped / case_force, uncapped / case_force, fpx.eq_12_10_3 / case_force, governs, note)
 
 
 def amplified_displacement_12_8_6(delta_xe: float, Cd: float, Ie: float) -> float:
