@@ -180,8 +180,10 @@ def _print_results(results: Results, out: Path) -> None:
     _print_irregularities(doc)
     methods = list(doc["assumptions"])
     envelope = doc.get("envelope") or {}
-    print(f"\nwall forces ({force}): largest magnitude over all cases (at Fx where a seismic load gives fx); "
-          "design = envelope of allowed assumptions")
+    print(f"\ndesign basis: {doc['plan']['design_basis']} — "
+          + "; ".join(f"{n}: {ld['combination']}" for n, ld in doc["plan"]["loads"].items()))
+    print(f"wall forces ({force}): largest magnitude over all cases (at Fx where a seismic load gives fx), on the "
+          "design basis; design = envelope of allowed assumptions")
     header = "  " + "wall".ljust(8) + "".join(m.rjust(11) for m in methods) + "design".rjust(11) + "  governs"
     print(header)
     for wall in doc["plan"]["wall_stiffness"]:

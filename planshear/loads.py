@@ -19,7 +19,13 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Polygon
 
-from .code.asce7_16 import CollectorRule, collector_rule_12_10_2_1, fpx_12_10_1_1
+from .code.asce7_16 import (
+    CollectorRule,
+    CombinationFactors,
+    collector_rule_12_10_2_1,
+    combination_factors_2_3_2_4,
+    fpx_12_10_1_1,
+)
 from .plan import Load, Plan
 
 __all__ = [
@@ -112,6 +118,8 @@ class LoadCase:
     #: Story force Fx for the vertical elements (N) when it differs from ``force`` (the
     #: diaphragm force Fpx or the given total): wall forces and drifts scale by Fx/force.
     story_force: float | None = None
+    #: Load-combination factors of the plan's design basis (ASCE 7-16 §2.3 / §2.4) on this case.
+    combination: CombinationFactors = CombinationFactors(1.0, 1.0, "unfactored (E and W as given; no [design] basis)")
 
     @property
     def wall_factor(self) -> float:
@@ -357,6 +365,7 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
             base_total, force, center = 0.0, 0.0, None
             rule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
             story_force = None
+        combination = combination_factors_2_3_2_4(plan.design_basis, load.kind, load.rho)
         for axis in load.directions:
             if load.kind == "seismic":
                 # A seismic field reverses exactly, so only +axis is analyzed.
@@ -380,7 +389,7 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                 cases.append(
                     LoadCase(label, load.name, load.kind, axis, sign, 0, case_force, field, case_center,
                              0.0, 0.0, load.collector_overstrength, ("flexible", "rigid", "semirigid"), rule,
-                             story_force)
+                             story_force, combination)
                 )
                 if eccentricity <= 0:
                     continue
@@ -392,6 +401,6 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                     cases.append(
                         LoadCase(f"{label}{'+' if ecc_sign > 0 else '-'}ecc", load.name, load.kind, axis, sign,
                                  ecc_sign, case_force, field, case_center, eccentricity, torsion,
-                                 load.collector_overstrength, ("rigid", "semirigid"), rule, story_force)
+                                 load.collector_overstrength, ("rigid", "semirigid"), rule, story_force, combination)
                     )
     return cases

@@ -195,6 +195,7 @@ class Load:
     collector_overstrength: float = 1.0
     light_frame: bool = False  # braced entirely by light-frame shear walls (ASCE 7-16 §12.10.2.1 Exception 2)
     fx: float | None = None  # N, story force Fx for the vertical elements (ELF, §12.8.3); None: the case force
+    rho: float = 1.0  # redundancy factor ρ (ASCE 7-16 §12.3.4) on the vertical elements' seismic load effect
     drift: tuple[float, float, float, float] | None = None  # (Cd, Ie, story height m, allowable Δa/hsx)
     sdc: str | None = None  # Seismic Design Category "A"…"F" (seismic loads), for Table 12.3-1
 
@@ -238,6 +239,7 @@ class Plan:
     classification: ClassificationFlags
     design_envelope: tuple[str, ...] = ()  # [design] envelope: assumptions of an engineer-chosen envelope
     code: str = "ASCE 7-16"  # [plan] code: the edition whose clauses apply (planshear.code)
+    design_basis: str | None = None  # [design] basis: "LRFD" or "ASD"; None: unfactored
     collector_EA: float | None = None  # N, [diaphragm] collector_EA as written (None if absent)
 
     @property
@@ -475,6 +477,7 @@ class _PlanBuilder:
         mesh = self.mesh_settings(doc.get("mesh", {}), size)
         classification = self.classification(doc.get("classification", {}))
         chosen = self.design_envelope(doc.get("design", {}))
+        basis = self.design_basis(doc.get("design", {}))
         if self.problems:
             raise PlanError(self.problems)
         outline_xy = np.asarray(outline.exterior.coords)[:-1]
@@ -498,6 +501,7 @@ class _PlanBuilder:
             transfers=tuple(transfers),
             design_envelope=chosen,
             code=code,
+            design_basis=basis,
         )
         check_stability(plan)
         return plan
@@ -794,7 +798,7 @@ class _PlanBuilder:
                 self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
                 ecc = None
             seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame",
-                            "drift", "sdc", "fx"}
+                            "drift", "sdc", "fx", "rho"}
             if kind == "edge":
                 misplaced = sorted(seismic_keys & set(entry))
                 if misplaced:
@@ -903,7 +907,8 @@ class _PlanBuilder:
                      point_footprints=tuple(footprints), total=total, fpx=fpx,
                      eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)),
                      drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx), sdc=sdc,
-                     fx=self.quantity(entry["fx"], FORCE, where + ".fx") if "fx" in entry else None)
+                     fx=self.quantity(entry["fx"], FORCE, where + ".fx") if "fx" in entry else None,
+                     rho=self.rho(entry.get("rho", 1.0), where + ".rho"))
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')
@@ -958,6 +963,20 @@ class _PlanBuilder:
         if None in (Cd, Ie, height, allowable):
             return None
         return Cd, Ie, height, allowable
+
+    def rho(self, value: float, where: str) -> float:
+        """The redundancy factor: 1.0 or 1.3 in ASCE 7-16 §12.3.4 (other values are refused)."""
+        if value not in (1.0, 1.3):
+            self.problem(where, f"the redundancy factor ρ is 1.0 or 1.3 (ASCE 7-16 §12.3.4), got {value}")
+            return 1.0
+        return float(value)
+
+    def design_basis(self, raw: dict) -> str | None:
+        basis = raw.get("basis")
+        if basis is not None and basis not in ("LRFD", "ASD"):
+            self.problem("design.basis", f'must be "LRFD" or "ASD", got "{basis}"')
+            return None
+        return basis
 
     def design_envelope(self, raw: dict) -> tuple[str, ...]:
         """[design] envelope: the assumptions of an engineer-chosen envelope, reported beside

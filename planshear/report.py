@@ -181,11 +181,11 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     tables["loads"] = (
         ["load", "kind", "directions", f"seismic weight ({f})", f"force x ({f})", f"force y ({f})", "Ω0",
          "force from", f"Eq. 12.10-1 ({f})", f"Eq. 12.10-2, lower ({f})", f"Eq. 12.10-3, upper ({f})",
-         f"walls and drifts at ({f})"],
+         f"walls and drifts at ({f})", "load combination (lateral terms)"],
         [[n, ld["kind"], ", ".join(ld["directions"]), ld.get("seismic_weight"), ld["force"].get("x"),
           ld["force"].get("y"), ld["collector_overstrength"], _force_source(ld),
           *[(ld.get("fpx_values") or {}).get(eq) for eq in ("12.10-1", "12.10-2", "12.10-3")],
-          f"Fx = {ld['fx']}" if "fx" in ld else "the same force"]
+          f"Fx = {ld['fx']}" if "fx" in ld else "the same force", ld.get("combination", "")]
          for n, ld in plan["loads"].items()],
     )
     classification = doc.get("classification") or {"directions": {}}

@@ -331,7 +331,10 @@ def classification_to_json(classification, units: OutputUnits) -> dict | None:
 def _governing(item, units: OutputUnits) -> dict | None:
     if item is None:
         return None
-    return {"value": _r(units.force_out(item.value)), "assumption": item.assumption, "case": item.case}
+    out = {"value": _r(units.force_out(item.value)), "assumption": item.assumption, "case": item.case}
+    if item.factor != 1.0:
+        out["combination_factor"] = _r(item.factor, 4)
+    return out
 
 
 def envelope_to_json(envelope, units: OutputUnits) -> dict | None:

@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 
 from .caution import CAUTION
-from .code.asce7_16 import fpx_12_10_1_1
+from .code.asce7_16 import combination_factors_2_3_2_4, fpx_12_10_1_1
 from .errors import AnalysisError, EquilibriumError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
@@ -331,6 +331,9 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
     summary = {
         "name": plan.name,
         "code": plan.code,
+        "design_basis": plan.design_basis or "unfactored",
+        "design_basis_note": "envelope values include the lateral terms of the load combinations of the design basis "
+                             "(factor shown as combination_factor); gravity terms are out of scope and not included",
         "file": plan.source,
         "length_unit": plan.length_unit,
         f"area_{area_unit}": round(units.length_out(units.length_out(plan.region.area)), 6),
@@ -395,5 +398,6 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
         forces = {c.axis: c.force for c in cases if c.load == load.name}
         entry["force"] = {axis: round(units.force_out(f), 6) for axis, f in forces.items()}
         entry["collector_overstrength"] = load.collector_overstrength
+        entry["combination"] = combination_factors_2_3_2_4(plan.design_basis, load.kind, load.rho).combination
         summary["loads"][load.name] = entry
     return summary

@@ -203,6 +203,7 @@ PLAN_SCHEMA: dict = {
                     "collector_overstrength": NUMBER,
                     "light_frame": {"type": "boolean"},
                     "fx": QUANTITY,
+                    "rho": NUMBER,
                     "drift": {
                         "type": "object",
                         "required": ["Cd", "story_height", "allowable"],
@@ -238,7 +239,7 @@ PLAN_SCHEMA: dict = {
         },
         "design": {
             "type": "object",
-            "properties": {"envelope": {"type": "array", "items": {"type": "string"}}},
+            "properties": {"envelope": {"type": "array", "items": {"type": "string"}}, "basis": {"type": "string"}},
             "additionalProperties": False,
         },
         "classification": {

@@ -25,9 +25,10 @@ __all__ = ["Governing", "Envelope", "build_envelope", "compare_walls"]
 
 @dataclass(frozen=True)
 class Governing:
-    value: float  # signed, SI
+    value: float  # signed, SI, with the design basis' load-combination factor applied
     assumption: str
     case: str
+    factor: float = 1.0  # that load-combination factor (ASCE 7-16 §2.3 / §2.4)
 
 
 @dataclass(frozen=True)
@@ -73,7 +74,7 @@ def _rank(assumption: str, case: LoadCase | None) -> tuple[int, int]:
 
 
 def _better(current: Governing | None, value: float, assumption: str, case: str,
-            cases: dict[str, LoadCase] | None = None, sign: float = 0.0) -> Governing | None:
+            cases: dict[str, LoadCase] | None = None, sign: float = 0.0, factor: float = 1.0) -> Governing | None:
     """The governing value after seeing ``value``: the larger magnitude (``sign`` 0), or the
     larger ``sign``·value among values of that sign (+1 tension, −1 compression). Ties within
     :data:`TIE` go to the base case and the simpler assumption, not to round-off."""
@@ -81,13 +82,13 @@ def _better(current: Governing | None, value: float, assumption: str, case: str,
     if measure(value) <= 0 and sign != 0:
         return current
     if current is None:
-        return Governing(value, assumption, case)
+        return Governing(value, assumption, case, factor)
     new, old = measure(value), measure(current.value)
     if new > old * (1 + TIE) + 1e-300:
-        return Governing(value, assumption, case)
+        return Governing(value, assumption, case, factor)
     if new >= old * (1 - TIE) and cases is not None:
         if _rank(assumption, cases.get(case)) < _rank(current.assumption, cases.get(current.case)):
-            return Governing(value, assumption, case)
+            return Governing(value, assumption, case, factor)
     return current
 
 
@@ -107,18 +108,22 @@ def build_envelope(
     reactions: dict[str, dict[str, Governing | None]] = {}
     collectors: dict[str, dict[str, Governing | None]] = {}
     chords: dict[str, dict[str, Governing | None]] = {}
-    def better(current, value, assumption, case_name, sign=0.0):
-        return _better(current, value, assumption, case_name, by_name, sign)
+    def better(current, value, assumption, case_name, sign=0.0, factor=1.0):
+        """Like _better, with ``value`` multiplied by ``factor`` (the combination factor)."""
+        return _better(current, factor * value, assumption, case_name, by_name, sign, factor)
 
-    def extremes(slot: dict, values, assumption: str, case_name: str, prefix: str = "", factor: float = 1.0) -> None:
+    def extremes(slot: dict, values, assumption: str, case_name: str, prefix: str = "", factor: float = 1.0,
+                 combination: float = 1.0) -> None:
         """Largest tension and compression of a diagram (N) into slot[prefix + "tension"|"compression"]."""
         if len(values) == 0:
             return
         top, bottom = float(max(values)), float(min(values))
         if by_name[case_name].kind == "seismic":  # only +axis is analyzed: the −axis case is its negative
             top, bottom = max(top, -bottom), min(bottom, -top)
-        slot[prefix + "tension"] = better(slot.get(prefix + "tension"), factor * top, assumption, case_name, 1.0)
-        slot[prefix + "compression"] = better(slot.get(prefix + "compression"), factor * bottom, assumption, case_name, -1.0)
+        slot[prefix + "tension"] = better(slot.get(prefix + "tension"), factor * top, assumption, case_name, 1.0,
+                                          combination)
+        slot[prefix + "compression"] = better(slot.get(prefix + "compression"), factor * bottom, assumption, case_name,
+                                              -1.0, combination)
 
     for assumption, method in methods.items():
         for case_name, result in method.cases.items():
@@ -128,42 +133,45 @@ def build_envelope(
             omega = case.collector_rule.factor
             # Walls and line reactions are the vertical elements' forces: Fx where the load gives it.
             to_fx = case.wall_factor
+            fv, fd = case.combination.vertical, case.combination.diaphragm
             for wall_id, force in ((w, f * to_fx) for w, f in result.wall_forces.items()):
                 slot = walls.setdefault(wall_id, {"design": None, "information": None})
-                slot["information"] = better(slot["information"], force, assumption, case_name)
-                slot[assumption] = better(slot.get(assumption), force, assumption, case_name)
+                slot["information"] = better(slot["information"], force, assumption, case_name, factor=fv)
+                slot[assumption] = better(slot.get(assumption), force, assumption, case_name, factor=fv)
                 if design:
-                    slot["design"] = better(slot["design"], force, assumption, case_name)
+                    slot["design"] = better(slot["design"], force, assumption, case_name, factor=fv)
             for name, line in result.lines.items():
                 r = reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
-                r["information"] = better(r["information"], to_fx * line.reaction, assumption, case_name)
-                c["information"] = better(c["information"], line.peak, assumption, case_name)
+                r["information"] = better(r["information"], to_fx * line.reaction, assumption, case_name, factor=fv)
+                c["information"] = better(c["information"], line.peak, assumption, case_name, factor=fd)
                 if design:
-                    r["design"] = better(r["design"], to_fx * line.reaction, assumption, case_name)
-                    c["design"] = better(c["design"], line.peak, assumption, case_name)
-                    c["with_overstrength"] = better(c["with_overstrength"], omega * line.peak, assumption, case_name)
-                    extremes(c, line.collector, assumption, case_name)
-                    extremes(c, line.collector, assumption, case_name, "with_overstrength_", omega)
+                    r["design"] = better(r["design"], to_fx * line.reaction, assumption, case_name, factor=fv)
+                    c["design"] = better(c["design"], line.peak, assumption, case_name, factor=fd)
+                    c["with_overstrength"] = better(c["with_overstrength"], omega * line.peak, assumption, case_name,
+                                                    factor=fd)
+                    extremes(c, line.collector, assumption, case_name, combination=fd)
+                    extremes(c, line.collector, assumption, case_name, "with_overstrength_", omega, fd)
             # Transfer diaphragms (flexible, rigid): their collectors and chords are enveloped too.
             extra_collectors, extra_chords = transfer_peaks(result.extra)
             for name, peak in extra_collectors:
                 reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
-                c["information"] = better(c["information"], peak, assumption, case_name)
+                c["information"] = better(c["information"], peak, assumption, case_name, factor=fd)
                 if design:
-                    c["design"] = better(c["design"], peak, assumption, case_name)
-                    c["with_overstrength"] = better(c["with_overstrength"], omega * peak, assumption, case_name)
-                    extremes(c, [peak], assumption, case_name)
-                    extremes(c, [peak], assumption, case_name, "with_overstrength_", omega)
+                    c["design"] = better(c["design"], peak, assumption, case_name, factor=fd)
+                    c["with_overstrength"] = better(c["with_overstrength"], omega * peak, assumption, case_name,
+                                                    factor=fd)
+                    extremes(c, [peak], assumption, case_name, combination=fd)
+                    extremes(c, [peak], assumption, case_name, "with_overstrength_", omega, fd)
             diagrams = [(name, chord.peak, chord.force) for name, chord in result.chords.items()]
             diagrams += [(name, peak, [peak]) for name, peak in extra_chords]
             for name, peak, values in diagrams:
                 slot = chords.setdefault(name, {"design": None, "information": None})
-                slot["information"] = better(slot["information"], peak, assumption, case_name)
+                slot["information"] = better(slot["information"], peak, assumption, case_name, factor=fd)
                 if design:
-                    slot["design"] = better(slot["design"], peak, assumption, case_name)
-                    extremes(slot, values, assumption, case_name)
+                    slot["design"] = better(slot["design"], peak, assumption, case_name, factor=fd)
+                    extremes(slot, values, assumption, case_name, combination=fd)
     # The semi-rigid model lists its wall pieces with their collector (see fem/collectors.py);
     # a piece with no bar at all gets a caution naming its walls.
     bare: dict[str, list[str]] = {}
@@ -190,7 +198,8 @@ def build_envelope(
         if governing is None:
             continue
         rule = by_name[governing.case].collector_rule
-        at_case = governing.value / rule.factor  # the collector force at that case's own force
+        # The collector force at that case's own force, before §12.10.2.1 (the combination factor stays).
+        at_case = governing.value / rule.factor
         rules[name] = {"clause": "ASCE 7-16 §12.10.2.1", "governs": rule.governs, "factor": rule.factor,
                        "without_cap": at_case * rule.uncapped,
                        "cap": None if rule.cap is None else at_case * rule.cap, "note": rule.note}

@@ -152,3 +152,43 @@ def test_collector_item_1_governs_when_fx_is_large():
     rule = collector_rule_12_10_2_1(2.0, fpx.value, fpx, False, fx=150.0)
     assert rule.factor == pytest.approx(1.5)
     assert rule.governs.startswith("item 1")
+
+
+@pytest.mark.parametrize(("basis", "rho", "walls", "diaphragm"), [
+    (None, 1.0, 1.0, 1.0),
+    ("LRFD", 1.3, 1.3, 1.0),   # §2.3.6 with E = ρQE (§12.4.2.1); ρ not on Fpx forces
+    ("ASD", 1.3, 0.91, 0.7),   # §2.4.5 with 0.7E
+])
+def test_design_basis_factors_reach_the_envelope(plan_from, basis, rho, walls, diaphragm):
+    """ASCE 7-16 Ch. 2 lateral terms (gravity out of scope): the envelope's wall values carry
+    ρ (LRFD) or 0.7ρ (ASD), diaphragm values 1.0 or 0.7, and the factor is reported."""
+    from planshear.run import analyze
+
+    design = f'[design]\nbasis = "{basis}"\n' if basis else ""
+    load = textwrap.dedent(f'''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "100 kip"
+        directions = ["y"]
+        eccentricity = 0
+        rho = {rho}
+        ''')
+    plan = plan_from(rectangle_plan(walls=end_walls(), load=load) + '[classification]\nidealized_flexible = true\n'
+                     + design)
+    result = analyze(plan, semirigid=False)
+    flexible = result.methods["flexible"].cases["E+y"]
+    w1 = result.envelope.walls["W1"]["flexible"]
+    assert w1.value == pytest.approx(walls * flexible.wall_forces["W1"], rel=1e-12)
+    assert w1.factor == pytest.approx(walls)
+    chord = result.envelope.chords["edge 1"]["design"]
+    assert abs(chord.value) == pytest.approx(diaphragm * abs(flexible.chords["edge 1"].peak), rel=1e-9)
+
+
+def test_wind_asd_factor():
+    """§2.4.1: 0.6W in the ASD combinations; 1.0W in LRFD (§2.3.1)."""
+    from planshear.code.asce7_16 import combination_factors_2_3_2_4
+
+    assert combination_factors_2_3_2_4("ASD", "edge").vertical == 0.6
+    assert combination_factors_2_3_2_4("LRFD", "edge").diaphragm == 1.0

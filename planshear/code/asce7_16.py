@@ -15,6 +15,9 @@ __all__ = [
     "CollectorRule",
     "collector_rule_12_10_2_1",
     "amplified_displacement_12_8_6",
+    "BASES",
+    "CombinationFactors",
+    "combination_factors_2_3_2_4",
     "drift_within_limit_12_12_1",
     "TORSIONAL_1A",
     "TORSIONAL_1B",
@@ -212,3 +215,35 @@ def sections_applying(irregularity_type: str, sdc: str) -> list[str]:
     """Reference sections of Table 12.3-1 that apply to ``irregularity_type`` ("1a",
     "1b", "2", "3") in Seismic Design Category ``sdc`` ("A"…"F"), in table order."""
     return [section for section, categories in SDC_APPLICATION[irregularity_type].items() if sdc in categories]
+
+
+#: Design bases of §2.3 (strength, LRFD) and §2.4 (allowable stress, ASD).
+BASES = ("LRFD", "ASD")
+
+
+@dataclass(frozen=True)
+class CombinationFactors:
+    """Factors on the lateral load effect of one case for its design values: ``vertical``
+    for walls and their reactions, ``diaphragm`` for diaphragm shears, chords and collectors
+    (collector overstrength forces included), with the combination they come from."""
+
+    vertical: float
+    diaphragm: float
+    combination: str
+
+
+def combination_factors_2_3_2_4(basis: str | None, kind: str, rho: float = 1.0) -> CombinationFactors:
+    """Lateral terms of the load combinations (gravity terms are out of scope and omitted):
+    seismic, LRFD §2.3.6 with E = ρ·QE (§12.4.2.1) — ρ on the vertical elements, 1.0 on
+    diaphragm forces of §12.10.1.1 (ρ does not apply to them; from memory) — and ASD §2.4.5
+    with 0.7E (0.7·Ω0·QE in the overstrength combinations); wind, LRFD 1.0W (§2.3.1) and ASD
+    0.6W (§2.4.1). ``basis`` None: unfactored (E and W as given)."""
+    if basis is None:
+        return CombinationFactors(1.0, 1.0, "unfactored (E and W as given; no [design] basis)")
+    if kind == "seismic":
+        if basis == "LRFD":
+            return CombinationFactors(rho, 1.0, f"LRFD §2.3.6: ρ·QE on walls (ρ = {rho:g}), QE on the diaphragm")
+        return CombinationFactors(0.7 * rho, 0.7, f"ASD §2.4.5: 0.7·ρ·QE on walls (ρ = {rho:g}), 0.7·QE on the diaphragm")
+    if basis == "LRFD":
+        return CombinationFactors(1.0, 1.0, "LRFD §2.3.1: 1.0W")
+    return CombinationFactors(0.6, 0.6, "ASD §2.4.1: 0.6W")
