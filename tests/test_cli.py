@@ -148,3 +148,20 @@ def test_output_path_that_is_a_file_is_refused(tmp_path, capsys):
     assert "choose another --out" in err and "Traceback" not in err
     assert target.read_text() == "not a folder"
     assert [p.name for p in tmp_path.iterdir()] == ["taken"]  # no partial folder left behind
+
+
+def test_steel_deck_example_shows_the_code_demands():
+    """The steel-deck example with a re-entrant corner carries every code step into
+    results.json: the governing Fpx equation (ΣFi/Σwi = 0.16 < 0.2·SDS, so Eq. 12.10-2),
+    Fx for the walls, the §12.10.2.1 collector values with their cap, Table 12.3-1 (Type 2
+    present: projections 37.5 % and 42.9 % > 15 %), the drift checks and the LRFD factors."""
+    plan = load_plan(Path(__file__).parents[1] / "examples" / "cedar_yard_warehouse_deck.toml")
+    doc = analyze(plan).to_json()
+    load = doc["plan"]["loads"]["E"]
+    assert load["fpx_equation"] == "12.10-2" and load["fx"] == 70.0
+    assert load["force_basis"]["walls, line reactions, wall drifts"].startswith("Fx")
+    collectors = doc["envelope"]["collectors"]
+    assert all(c["overstrength"]["cap"] is not None for c in collectors.values() if "overstrength" in c)
+    types = {(i["type"], i["present"]) for i in doc["irregularities"]}
+    assert ("2", True) in types
+    assert doc["drift"]["walls"] and doc["plan"]["design_basis"] == "LRFD"

@@ -122,7 +122,7 @@ def drift_within_limit_12_12_1(delta_x: float, story_height: float, allowable_ra
     """§12.12.1 / Table 12.12-1: the design story drift Δ = δx (for one story) must not
     exceed Δa = (allowable ratio)·hsx; the ratio is the engineer's pick from the table
     (risk category and structure type)."""
-    return abs(delta_x) <= allowable_ratio * story_height
+    return bool(abs(delta_x) <= allowable_ratio * story_height)
 
 
 # --- Table 12.3-1, horizontal structural irregularities -------------------------------------
