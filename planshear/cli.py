@@ -240,7 +240,10 @@ def _print_irregularities(doc: dict) -> None:
     if not items:
         return
     d = doc["units"]["displacement"]
-    print("\nhorizontal irregularities (ASCE 7-16 Table 12.3-1; consequences not yet applied to the forces)")
+    applied = doc.get("irregularity_consequences_applied") or []
+    print("\nhorizontal irregularities (ASCE 7-16 Table 12.3-1; "
+          + ("applied: " + "; ".join(applied) if applied else "the 25 % of §12.3.3.4 applies only with sdc D–F")
+          + "; Ax of §12.8.4.3 not yet applied to the forces)")
     for item in items:
         v = item["values"]
         where = " ".join(filter(None, [item.get("method"), item.get("load") and f"load {item['load']}",

@@ -364,6 +364,7 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
             "without_cap": _r(units.force_out(rule["without_cap"])),
             "cap": None if rule["cap"] is None else _r(units.force_out(rule["cap"])),
             **({"note": rule["note"]} if rule["note"] else {}),
+            **({"increase_12_3_3_4": rule["increase_12_3_3_4"]} if "increase_12_3_3_4" in rule else {}),
         }
         lines.setdefault(name, {})["collector_overstrength_governs"] = rule["governs"]
     for name, text in envelope.cautions.items():

@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 
 from .caution import CAUTION
-from .code.asce7_16 import combination_factors_2_3_2_4, fpx_12_10_1_1
+from .code.asce7_16 import INCREASE_12_3_3_4, combination_factors_2_3_2_4, fpx_12_10_1_1
 from .errors import AnalysisError, EquilibriumError
 from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
@@ -21,7 +21,12 @@ from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
 from .postprocess.classify import Classification, classify
 from .postprocess.drift import DriftCheck, drift_checks
-from .postprocess.envelope import Envelope, build_envelope, compare_walls
+from .postprocess.envelope import (
+    Envelope,
+    build_envelope,
+    compare_walls,
+    with_irregularity_increase,
+)
 from .postprocess.irregularity import Irregularity, detect_irregularities
 from .postprocess.transfer import strut_cautions
 from .results import (
@@ -60,6 +65,7 @@ class Results:
     equilibrium: dict[str, float] = field(default_factory=dict)  # assumption → largest imbalance
     engineer_envelope: Envelope | None = None  # over the assumptions of [design] envelope
     drift: tuple[DriftCheck, ...] = ()  # ASCE 7-16 §12.8.6 / §12.12.1, loads with drift inputs
+    applied_consequences: tuple[str, ...] = ()  # irregularity consequences applied to the forces
     irregularities: tuple[Irregularity, ...] = ()  # ASCE 7-16 Table 12.3-1 checks
 
     @property
@@ -86,6 +92,7 @@ class Results:
             "sensitivity": {f"{factor:g}": method_to_json(m, units) for factor, m in self.sensitivity.items()},
             "envelope": envelope_to_json(self.envelope, units),
             "drift": drift_to_json(self.drift, units),
+            "irregularity_consequences_applied": list(self.applied_consequences),
             "engineer_envelope": None if self.engineer_envelope is None else {
                 "label": "engineer-chosen envelope over " + " + ".join(self.plan.design_envelope)
                          + " ([design] envelope); not the code's allowed assumptions, see envelope",
@@ -219,8 +226,19 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
         engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
     drift = tuple(drift_checks(plan, methods, cases, run))
     irregularities = detect_irregularities(plan, cases, methods, run.solution if run else None, classification)
+    # ASCE 7-16 §12.3.3.4: SDC D–F with a Type 1a, 1b, 2 or 3 irregularity present.
+    triggering = [i for i in irregularities if i.present and i.applies and any("12.3.3.4" in s for s in i.sections)]
+    applied = ()
+    if triggering:
+        reason = "§12.3.3.4: horizontal irregularity " + ", ".join(sorted({f"Type {i.type}" for i in triggering}))
+        envelope = with_irregularity_increase(envelope, INCREASE_12_3_3_4, reason)
+        if engineer is not None:
+            engineer = with_irregularity_increase(engineer, INCREASE_12_3_3_4, reason)
+        applied = (f"{reason}: collector design forces × {INCREASE_12_3_3_4:g} (overstrength values that include Ω0 "
+                   "unchanged); diaphragm-to-wall and diaphragm-to-collector connections need the same increase "
+                   "(not computed by planshear)",)
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
-                   engineer_envelope=engineer, drift=drift, irregularities=irregularities)
+                   engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied)
 
 
 def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:

@@ -12,7 +12,7 @@ base case and the simpler assumption.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from planshear.loads import LoadCase
 from planshear.results import MethodResult
@@ -20,7 +20,7 @@ from planshear.results import MethodResult
 from .classify import Classification
 from .transfer import transfer_peaks
 
-__all__ = ["Governing", "Envelope", "build_envelope", "compare_walls"]
+__all__ = ["Governing", "Envelope", "build_envelope", "compare_walls", "with_irregularity_increase"]
 
 
 @dataclass(frozen=True)
@@ -204,6 +204,35 @@ def build_envelope(
                        "without_cap": at_case * rule.uncapped,
                        "cap": None if rule.cap is None else at_case * rule.cap, "note": rule.note}
     return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis, rules)
+
+
+def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -> Envelope:
+    """The envelope with ASCE 7-16 §12.3.3.4 applied: collector design values (design,
+    tension, compression) × ``factor``, and their §12.10.2.1 values too where those do not
+    include Ω0 (item 3, the Exception 1 cap, no overstrength). ``reason`` names the
+    irregularities; it is recorded with each collector's rule."""
+    from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
+
+    def scaled(g: Governing | None) -> Governing | None:
+        return None if g is None else Governing(factor * g.value, g.assumption, g.case, g.factor)
+
+    collectors, rules = {}, {}
+    for name, slots in envelope.collectors.items():
+        rule = dict(envelope.collector_rules.get(name, {}))
+        with_omega = collector_increase_applies_12_3_3_4(rule.get("governs", "no overstrength"))
+        collectors[name] = {
+            key: (scaled(value) if key in ("design", "tension", "compression")
+                  or (key.startswith("with_overstrength") and with_omega) else value)
+            for key, value in slots.items()
+        }
+        if rule:
+            if with_omega:
+                rule["without_cap"] *= factor
+                rule["cap"] = None if rule["cap"] is None else rule["cap"] * factor
+            rule["increase_12_3_3_4"] = (f"× {factor:g} ({reason})" if with_omega else
+                                         f"× {factor:g} on the design value only; the overstrength value includes Ω0")
+            rules[name] = rule
+    return replace(envelope, collectors=collectors, collector_rules=rules)
 
 
 def compare_walls(methods: dict[str, MethodResult]) -> dict[str, dict[str, dict[str, float | None]]]:

@@ -192,3 +192,70 @@ def test_wind_asd_factor():
 
     assert combination_factors_2_3_2_4("ASD", "edge").vertical == 0.6
     assert combination_factors_2_3_2_4("LRFD", "edge").diaphragm == 1.0
+
+
+L_PLAN = textwrap.dedent('''
+    [plan]
+    name = "L"
+    length_unit = "ft"
+    [diaphragm]
+    outline = [[0, 0], [120, 0], [120, 50], [60, 50], [60, 100], [0, 100]]
+    material = { kind = "wood-panel", Ga = "12 kip/in" }
+    chord_EA = "30000 kip"
+    [grid]
+    x = { "1" = 0, "2" = 60, "3" = 120 }
+    y = { "A" = 0, "B" = 50, "C" = 100 }
+    [[wall]]
+    id = "W1"
+    line = "1"
+    from = 10
+    to = 90
+    stiffness = "60 kip/in"
+    [[wall]]
+    id = "W3"
+    line = "3"
+    from = 5
+    to = 45
+    stiffness = "50 kip/in"
+    [[wall]]
+    id = "WA"
+    line = "A"
+    from = 10
+    to = 110
+    stiffness = "70 kip/in"
+    [[wall]]
+    id = "WC"
+    line = "C"
+    from = 5
+    to = 55
+    stiffness = "40 kip/in"
+    [[load]]
+    name = "E"
+    kind = "seismic"
+    area_weight = "15 psf"
+    fpx = { SDS = 0.9, Ie = 1.0, story_force_ratio = 0.2 }
+    directions = ["x", "y"]
+    collector_overstrength = 2.5
+    sdc = "SDC"
+    [classification]
+    idealized_flexible = true
+    ''')
+
+
+def test_irregularity_increase_of_12_3_3_4_on_collectors(plan_from):
+    """ASCE 7-16 §12.3.3.4 (from memory): SDC D–F with a Type 2 re-entrant corner (both
+    projections 50 % > 15 %) → collector forces × 1.25, also the §12.10.2.1 value here since
+    the Exception 1 cap (basic combinations, no Ω0) governs; SDC C: no increase."""
+    from planshear.run import analyze
+
+    results = {sdc: analyze(plan_from(L_PLAN.replace('"SDC"', f'"{sdc}"')), semirigid=False) for sdc in ("C", "D")}
+    low, high = results["C"].envelope.collectors, results["D"].envelope.collectors
+    assert results["D"].applied_consequences and not results["C"].applied_consequences
+    compared = 0
+    for name, slots in low.items():
+        if slots["design"] is None or slots["design"].value == 0:
+            continue
+        assert high[name]["design"].value == pytest.approx(1.25 * slots["design"].value, rel=1e-12)
+        assert high[name]["with_overstrength"].value == pytest.approx(1.25 * slots["with_overstrength"].value, rel=1e-12)
+        compared += 1
+    assert compared

@@ -16,6 +16,8 @@ __all__ = [
     "collector_rule_12_10_2_1",
     "amplified_displacement_12_8_6",
     "BASES",
+    "INCREASE_12_3_3_4",
+    "collector_increase_applies_12_3_3_4",
     "CombinationFactors",
     "combination_factors_2_3_2_4",
     "drift_within_limit_12_12_1",
@@ -247,3 +249,17 @@ def combination_factors_2_3_2_4(basis: str | None, kind: str, rho: float = 1.0) 
     if basis == "LRFD":
         return CombinationFactors(1.0, 1.0, "LRFD §2.3.1: 1.0W")
     return CombinationFactors(0.6, 0.6, "ASD §2.4.1: 0.6W")
+
+
+#: §12.3.3.4: increase of the §12.10.1.1 design forces of collectors and their connections
+#: (and of diaphragm connections to vertical elements and collectors) for SDC D–F with a
+#: horizontal irregularity of Type 1a, 1b, 2, 3 or 4; forces that include the overstrength
+#: Ω0 (§12.4.3) need not be increased (from memory of ASCE 7-16).
+INCREASE_12_3_3_4 = 1.25
+
+
+def collector_increase_applies_12_3_3_4(overstrength_governs: str) -> bool:
+    """Whether the §12.3.3.4 increase applies to a §12.10.2.1 collector force governed by
+    ``overstrength_governs`` (CollectorRule.governs): not to forces that include Ω0 (items 1
+    and 2); to the basic-combination forces of item 3 and of the Exception 1 cap."""
+    return overstrength_governs.startswith(("item 3", "Exception 1", "no overstrength", "Exception 2"))
