@@ -357,7 +357,7 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
             weight = seismic_weight(plan, load)
             fpx = fpx_12_10_1_1(weight.total, *load.fpx) if load.fpx is not None else None
             force = fpx.value if fpx is not None else float(load.total)
-            rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame, load.fx)
+            rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame, load.fx, load.sdc)
             story_force = load.fx
             base_total = weight.total
             center = weight.center

@@ -259,3 +259,10 @@ def test_irregularity_increase_of_12_3_3_4_on_collectors(plan_from):
         assert high[name]["with_overstrength"].value == pytest.approx(1.25 * slots["with_overstrength"].value, rel=1e-12)
         compared += 1
     assert compared
+
+
+def test_no_collector_overstrength_in_sdc_b():
+    """§12.10.2.1 applies to SDC C–F: with SDC B stated, Ω0 is not applied to collectors."""
+    fpx = fpx_12_10_1_1(1000.0, 0.3, 1.0, 0.1)
+    assert collector_rule_12_10_2_1(2.5, fpx.value, fpx, sdc="B").factor == 1.0
+    assert collector_rule_12_10_2_1(2.5, fpx.value, fpx, sdc="C").factor > 1.0

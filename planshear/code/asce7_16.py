@@ -81,7 +81,8 @@ class CollectorRule:
 
 
 def collector_rule_12_10_2_1(omega0: float, case_force: float, fpx: FpxValues | None,
-                             light_frame: bool = False, fx: float | None = None) -> CollectorRule:
+                             light_frame: bool = False, fx: float | None = None,
+                             sdc: str | None = None) -> CollectorRule:
     """§12.10.2.1 (SDC C–F) for collectors, their splices and connections: the largest of
     (2) the overstrength load effect, Ω0 × the forces of Eq. 12.10-1, and (3) the forces of
     Eq. 12.10-2 without overstrength; Exception 1: need not exceed the forces of Eq. 12.10-3
@@ -92,6 +93,8 @@ def collector_rule_12_10_2_1(omega0: float, case_force: float, fpx: FpxValues | 
     ``omega0`` ≤ 1 means the engineer did not ask for overstrength (e.g. SDC B): factor 1.
     Item list and exceptions from memory of ASCE 7-16; Exception 1 as quoted from ASCE 7-10
     (same content, which referred to the basic combinations of §12.4.2.3)."""
+    if sdc in ("A", "B"):
+        return CollectorRule(1.0, 1.0, None, f"no overstrength: §12.10.2.1 applies to SDC C–F (SDC {sdc} given)")
     if light_frame:
         return CollectorRule(1.0, 1.0, None, "Exception 2: braced entirely by light-frame shear walls (no Ω0)")
     if omega0 <= 1.0:
