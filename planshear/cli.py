@@ -242,8 +242,9 @@ def _print_irregularities(doc: dict) -> None:
     d = doc["units"]["displacement"]
     applied = doc.get("irregularity_consequences_applied") or []
     print("\nhorizontal irregularities (ASCE 7-16 Table 12.3-1; "
-          + ("applied: " + "; ".join(applied) if applied else "the 25 % of §12.3.3.4 applies only with sdc D–F")
-          + "; Ax of §12.8.4.3 not yet applied to the forces)")
+          + ("applied: " + "; ".join(applied) if applied else "no consequence applied to the forces: §12.8.4.3 "
+             "and §12.3.3.4 apply only where a load states sdc C–F / D–F and the irregularity is present")
+          + ")")
     for item in items:
         v = item["values"]
         where = " ".join(filter(None, [item.get("method"), item.get("load") and f"load {item['load']}",

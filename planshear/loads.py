@@ -348,9 +348,11 @@ def plan_dimension_across(plan: Plan, axis: str) -> float:
     return float(np.ptp(plan.outline[:, other]))
 
 
-def expand_load_cases(plan: Plan) -> list[LoadCase]:
+def expand_load_cases(plan: Plan, amplification: dict[tuple[str, str], float] | None = None) -> list[LoadCase]:
     """All load cases of the plan, in file order: per load, per direction, then
-    the ±eccentricity cases (rigid and semi-rigid only)."""
+    the ±eccentricity cases (rigid and semi-rigid only). ``amplification`` maps (load,
+    axis) to the torsional amplification Ax of ASCE 7-16 §12.8.4.3 that multiplies the
+    accidental eccentricity of those cases."""
     cases: list[LoadCase] = []
     for load in plan.loads:
         if load.kind == "seismic":
@@ -382,7 +384,8 @@ def expand_load_cases(plan: Plan) -> list[LoadCase]:
                     areas, kept = _spread_lines(plan, lines, axis)
                     edge_field = ForceField(sign * AXES[axis], tuple(areas), tuple(kept), ())
                     fields.append((sign, edge_field, edge_field.total(), edge_field.centroid()))
-            eccentricity = load.eccentricity * plan_dimension_across(plan, axis)
+            eccentricity = load.eccentricity * plan_dimension_across(plan, axis) * (amplification or {}).get(
+                (load.name, axis), 1.0)
             for sign, field, case_force, case_center in fields:
                 direction = sign * AXES[axis]
                 label = f"{load.name}{'+' if sign > 0 else '-'}{axis}"

@@ -89,7 +89,7 @@ LIMITATIONS_TEXT = [
     "The flexible method gives no force to walls on skewed lines.",
     "Peaks of unit shear at re-entrant corners and wall ends depend on the mesh (stress concentrations).",
     "Code checks are limited to the flexibility classification and the horizontal irregularities of ASCE 7-16 "
-    "Table 12.3-1 Types 1a, 1b, 2 and 3 (detected and reported; only the §12.3.3.4 collector increase is applied); capacities are "
+    "Table 12.3-1 Types 1a, 1b, 2 and 3 (detected; Ax and the §12.3.3.4 collector increase applied); capacities are "
     "not checked.",
 ]
 
@@ -523,7 +523,7 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                            ("cases", "Load cases"),
                            ("classification", "Flexibility check"),
                            ("span_deflection", "Span deflection by beam theory (flexible method)"),
-                           ("irregularities", "Horizontal irregularities, ASCE 7-16 Table 12.3-1 (§12.3.3.4 applied to collectors; Ax not yet)"),
+                           ("irregularities", "Horizontal irregularities, ASCE 7-16 Table 12.3-1 (Ax and §12.3.3.4 applied where they apply)"),
                            ("walls", "Wall forces"),
                            ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
                            ("engineer_envelope", "Engineer-chosen envelope (not the code check)"),
@@ -555,9 +555,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
 
 
 IRREGULARITY_TEXT = (
-    "Detected and reported. Of the consequences, only the 25 % increase of §12.3.3.4 on collector forces (SDC D–F, "
-    "not on forces that include Ω0) is applied to the envelope; the torsional amplification Ax and the others are "
-    "not yet applied to the forces. Torsion: δ at the plan's two extreme edges "
+    "Detected and reported. Of the consequences, the torsional amplification Ax (§12.8.4.3, SDC C–F: the ±ecc cases "
+    "are run again with the eccentricity × Ax) and the 25 % increase of §12.3.3.4 on collector forces (SDC D–F, not "
+    "on forces that include Ω0) are applied; the others are the engineer's to apply. Torsion: δ at the plan's two extreme edges "
     "across the load, worst of the accidental-torsion cases; re-entrant corners from the outline; open area = "
     "openings / area enclosed by the outline. The SDC application column is from memory of the standard."
 )

@@ -180,34 +180,16 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     report = progress or (lambda stage: None)
     report("load cases and idealized methods")
     cases = expand_load_cases(plan)
-    methods: dict[str, MethodResult] = {}
-    unavailable: dict[str, str] = {}
-    # Walls in one direction only (loaded along it): the flexible method alone can run.
-    unavailable.update(assess_stability(plan).unavailable)
-    try:
-        methods["flexible"] = flexible_analysis(plan, cases)
-    except AnalysisError as exc:
-        unavailable["flexible"] = str(exc)
-    if "rigid" not in unavailable:
-        methods["rigid"] = rigid_analysis(plan, cases)
-    run = None
-    classification = None
-    sensitivity: dict[float, MethodResult] = {}
-    solutions = {}
-    if "semirigid" in unavailable:
-        pass
-    elif semirigid:
-        run = semirigid_analysis(plan, cases, progress=report)
-        methods["semirigid"] = run.result
-        report("flexibility classification")
-        classification = classify(plan, run.solution)
-        for factor in plan.classification.sensitivity:
-            report(f"sensitivity: diaphragm stiffness × {factor:g}")
-            scaled = semirigid_analysis(plan, cases, mesh=run.mesh, stiffness_factor=factor)
-            sensitivity[factor] = scaled.result
-            solutions[factor] = scaled.solution
-    else:
-        unavailable["semirigid"] = "not requested"
+    methods, unavailable, run, classification, sensitivity, solutions = _run_methods(plan, cases, semirigid, report)
+    # Table 12.3-1 with Ax = 1 (as §12.8.4.3 asks), then the ±ecc cases again with the
+    # eccentricity amplified by Ax where a torsional irregularity applies (SDC C–F).
+    irregularities = detect_irregularities(plan, cases, methods, run.solution if run else None, classification)
+    amplification = _torsional_amplification(irregularities)
+    if amplification:
+        report("accidental torsion amplified by Ax (ASCE 7-16 §12.8.4.3)")
+        cases = expand_load_cases(plan, amplification)
+        methods, unavailable, run, classification, sensitivity, solutions = _run_methods(
+            plan, cases, semirigid, report, mesh=run.mesh if run else None)
     # After every method ran, so that a model the solver refuses is reported as such first.
     equilibrium = {name: check_equilibrium(plan, cases, m, name, run.solution if name == "semirigid" else None)
                    for name, m in methods.items()}
@@ -225,7 +207,6 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     if plan.design_envelope:
         engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
     drift = tuple(drift_checks(plan, methods, cases, run))
-    irregularities = detect_irregularities(plan, cases, methods, run.solution if run else None, classification)
     # ASCE 7-16 §12.3.3.4: SDC D–F with a Type 1a, 1b, 2 or 3 irregularity present.
     triggering = [i for i in irregularities if i.present and i.applies and any("12.3.3.4" in s for s in i.sections)]
     applied = ()
@@ -237,8 +218,58 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
         applied = (f"{reason}: collector design forces × {INCREASE_12_3_3_4:g} (overstrength values that include Ω0 "
                    "unchanged); diaphragm-to-wall and diaphragm-to-collector connections need the same increase "
                    "(not computed by planshear)",)
+    applied += tuple(f"§12.8.4.3: accidental eccentricity of load {load} along {axis} × Ax = {ax:.3f} (torsional "
+                     "irregularity; all ±ecc cases of the rigid and semi-rigid assumptions)"
+                     for (load, axis), ax in sorted(amplification.items()))
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
                    engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied)
+
+
+def _torsional_amplification(irregularities) -> dict[tuple[str, str], float]:
+    """(load, axis) → Ax > 1 where a Type 1a or 1b torsional irregularity is present and its
+    consequences apply with §12.8.4.3 (SDC C–F); the larger of the rigid and semi-rigid Ax."""
+    found: dict[tuple[str, str], float] = {}
+    for item in irregularities:
+        ax = (item.values or {}).get("Ax")
+        if (item.type in ("1a", "1b") and item.present and item.applies and ax and ax > 1.0
+                and any("12.8.4.3" in section for section in item.sections)):
+            key = (item.load, item.axis)
+            found[key] = max(found.get(key, 1.0), float(ax))
+    return found
+
+
+def _run_methods(plan: Plan, cases: list[LoadCase], semirigid: bool, report, mesh=None):
+    """Every assumption on ``cases``: (methods, unavailable, semi-rigid run, classification,
+    sensitivity results, sensitivity solutions)."""
+    methods: dict[str, MethodResult] = {}
+    unavailable: dict[str, str] = {}
+    # Walls in one direction only (loaded along it): the flexible method alone can run.
+    unavailable.update(assess_stability(plan).unavailable)
+    try:
+        methods["flexible"] = flexible_analysis(plan, cases)
+    except AnalysisError as exc:
+        unavailable["flexible"] = str(exc)
+    if "rigid" not in unavailable:
+        methods["rigid"] = rigid_analysis(plan, cases)
+    run = None
+    classification = None
+    sensitivity: dict[float, MethodResult] = {}
+    solutions = {}
+    if "semirigid" in unavailable:
+        pass
+    elif semirigid:
+        run = semirigid_analysis(plan, cases, mesh=mesh, progress=report)
+        methods["semirigid"] = run.result
+        report("flexibility classification")
+        classification = classify(plan, run.solution)
+        for factor in plan.classification.sensitivity:
+            report(f"sensitivity: diaphragm stiffness × {factor:g}")
+            scaled = semirigid_analysis(plan, cases, mesh=run.mesh, stiffness_factor=factor)
+            sensitivity[factor] = scaled.result
+            solutions[factor] = scaled.solution
+    else:
+        unavailable["semirigid"] = "not requested"
+    return methods, unavailable, run, classification, sensitivity, solutions
 
 
 def _wall_resultant(plan: Plan, forces: dict[str, float], reference: np.ndarray) -> np.ndarray:

@@ -23,8 +23,7 @@ from ..results import MethodResult
 
 __all__ = ["Irregularity", "VALUE_KINDS", "detect_irregularities", "end_displacements", "reentrant_corners"]
 
-NOT_APPLIED = ("the §12.3.3.4 increase is applied to collector forces where it applies (SDC D–F); Ax and the "
-               "other consequences are not yet applied to the forces")
+NOT_APPLIED = "what planshear applied to the forces: see irregularity_consequences_applied"
 
 #: What each key of ``Irregularity.values`` holds, for unit conversion on output.
 VALUE_KINDS = {

@@ -266,3 +266,38 @@ def test_no_collector_overstrength_in_sdc_b():
     fpx = fpx_12_10_1_1(1000.0, 0.3, 1.0, 0.1)
     assert collector_rule_12_10_2_1(2.5, fpx.value, fpx, sdc="B").factor == 1.0
     assert collector_rule_12_10_2_1(2.5, fpx.value, fpx, sdc="C").factor > 1.0
+
+
+def test_torsional_amplification_is_applied_to_the_eccentric_cases(plan_from):
+    """ASCE 7-16 §12.8.4.3 (Eq. 12.8-14, VALIDATION.md 1.8): with a Type 1a/1b torsional
+    irregularity in SDC C–F, the ±ecc cases are run again with the accidental eccentricity
+    × Ax = (δmax/(1.2·δavg))², 1 ≤ Ax ≤ 3, Ax taken from the analysis with Ax = 1; in SDC B
+    nothing changes. Unequal end walls (200 and 20 kip/in) make the plan twist."""
+    from planshear.run import analyze
+
+    def plan(sdc):
+        load = textwrap.dedent(f'''
+            [[load]]
+            name = "E"
+            kind = "seismic"
+            area_weight = "20 psf"
+            total = "100 kip"
+            directions = ["y"]
+            sdc = "{sdc}"
+            ''')
+        walls = end_walls().replace('"50 kip/in"', '"200 kip/in"', 1)
+        walls = walls.replace('id = "W2"\nline = "2"\nfrom = 0\nto = 50\nstiffness = "50 kip/in"',
+                              'id = "W2"\nline = "2"\nfrom = 0\nto = 50\nstiffness = "20 kip/in"')
+        return plan_from(rectangle_plan(walls=walls, load=load))
+
+    base = analyze(plan("B"), semirigid=False)
+    amplified = analyze(plan("D"), semirigid=False)
+    torsional = [i for i in amplified.irregularities if i.type in ("1a", "1b") and i.method == "rigid"]
+    assert torsional and torsional[0].values["Ax"] > 1.0
+    ax = torsional[0].values["Ax"]
+    ecc = {c.name: c.eccentricity for c in base.cases}
+    for case in amplified.cases:
+        if case.eccentricity_sign:
+            assert case.eccentricity == pytest.approx(ax * ecc[case.name], rel=1e-3)  # Ax rounded to 4 digits
+    assert any("12.8.4.3" in text for text in amplified.applied_consequences)
+    assert not any("12.8.4.3" in text for text in base.applied_consequences)
