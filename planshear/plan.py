@@ -509,7 +509,7 @@ class _PlanBuilder:
     def material(self, raw: dict, where: str) -> Material | None:
         kind = raw["kind"]
         allowed = {
-            "wood-panel": ({"Ga"}, {"axial_ratio"}),
+            "wood-panel": (set(), {"Ga", "Gt", "en", "at_unit_shear", "axial_ratio"}),
             "steel-deck": ({"G_prime"}, {"axial_ratio"}),
             "concrete": ({"E", "thickness"}, {"nu", "cracked"}),
             "custom": ({"Et_x", "Et_y", "Gt"}, {"nu"}),
@@ -532,9 +532,29 @@ class _PlanBuilder:
         if not (-1.0 < nu < 0.5):
             self.problem(where + ".nu", f"Poisson's ratio must lie between -1 and 0.5, got {nu}")
             return None
+        slip = ""
+        if kind == "wood-panel" and "Ga" not in raw:
+            given = sorted({"Gt", "en", "at_unit_shear"} & set(raw))
+            if len(given) != 3:
+                self.problem(where, 'a wood-panel material needs "Ga" (SDPWS apparent shear stiffness, kip/in), or "Gt", '
+                             '"en" and "at_unit_shear" (panel shear rigidity, nail slip and the unit shear it is taken '
+                             f'at) to derive it; got {", ".join(given) or "none of them"}')
+                return None
+        elif kind == "wood-panel" and {"Gt", "en", "at_unit_shear"} & set(raw):
+            self.problem(where, 'give either "Ga" or "Gt", "en" and "at_unit_shear", not both')
+            return None
         if kind in ("wood-panel", "steel-deck"):
             key = "Ga" if kind == "wood-panel" else "G_prime"
-            gt = self.quantity(raw[key], STIFFNESS, f"{where}.{key}")
+            if key in raw:
+                gt = self.quantity(raw[key], STIFFNESS, f"{where}.{key}")
+            else:
+                panel = self.quantity(raw["Gt"], STIFFNESS, where + ".Gt")
+                en = self.quantity(raw["en"], LENGTH, where + ".en", positive=False)
+                v = self.quantity(raw["at_unit_shear"], LINE_LOAD, where + ".at_unit_shear")
+                gt = None if None in (panel, en, v) else apparent_shear_stiffness(panel, en, v)
+                if gt is not None:
+                    slip = (f" (from Gt = {raw['Gt']}, en = {raw['en']} at {raw['at_unit_shear']}: "
+                            "1/(1/Gt + 4·0.188/ft·en/v), IBC Eq. 23-1 shear and slip terms)")
             ratio = float(raw.get("axial_ratio", DEFAULT_AXIAL_RATIO))
             if not (math.isfinite(ratio) and ratio > 0):
                 self.problem(where + ".axial_ratio", f"must be a positive number, got {ratio}")
@@ -542,7 +562,7 @@ class _PlanBuilder:
             if gt is None:
                 return None
             source = "SDPWS apparent shear stiffness, G·t = 1000·Ga lb/in for Ga in kip/in" if kind == "wood-panel" else "AISI S310 / SDI shear stiffness G′ (G·t = G′)"
-            return Material(kind, ratio * gt, ratio * gt, 0.0, gt, f"{kind}: Gt = {key} ({source}); Et = {ratio:g}·Gt in both directions so that the chords carry the flexure")
+            return Material(kind, ratio * gt, ratio * gt, 0.0, gt, f"{kind}: Gt = {key} ({source}){slip}; Et = {ratio:g}·Gt in both directions so that the chords carry the flexure")
         if kind == "concrete":
             E = self.quantity(raw["E"], PRESSURE, where + ".E")
             t = self.quantity(raw["thickness"], LENGTH, where + ".thickness")
@@ -1007,6 +1027,21 @@ class _PlanBuilder:
 BYTES_PER_DOF = 4096
 #: Share of the machine's memory a run may plan to use.
 MEMORY_FRACTION = 0.8
+
+
+#: The nail-slip term of the 4-term diaphragm deflection, 0.188·L·en with L in ft (IBC 2021
+#: Eq. 23-1; the constant assumes the equation's uniform fastening), per metre of span.
+SLIP_CONSTANT = 0.188 / 0.3048
+
+
+def apparent_shear_stiffness(Gt: float, en: float, v: float) -> float:
+    """Apparent shear rigidity (N/m, the G·t of the membrane, = 1000·Ga lb/in) that gives the
+    shear and nail-slip terms of the 4-term equation, vL/(4Gt) + 0.188·L·en, as the one shear
+    term 0.25·vL/(1000·Ga) of SDPWS-2015 Eq. 4.2-1: 1/(1/Gt + 4·0.188/ft·en/v), with Gt the
+    panel shear rigidity (N/m), en the nail slip (m) at the unit shear v (N/m). Since slip
+    depends on the load, so does the result: take v at the level the model should represent
+    (SDPWS tabulates Ga at 1.4 × the ASD capacity)."""
+    return 1.0 / (1.0 / Gt + 4.0 * SLIP_CONSTANT * en / v)
 
 
 def estimate_mesh(area: float, size: float, order: int) -> tuple[float, float]:

@@ -33,6 +33,8 @@ MATERIAL = {
         "Et_y": QUANTITY,
         "Gt": QUANTITY,
         "axial_ratio": NUMBER,
+        "en": QUANTITY,
+        "at_unit_shear": QUANTITY,
     },
     "additionalProperties": False,
 }

@@ -364,3 +364,21 @@ def test_flexible_span_deflection_is_the_code_equation(plan_from):
     drift = 15 * KIP / (1e4 * KIP / INCH)  # each end wall takes 15 kip at 10,000 kip/in
     assert span.adve == pytest.approx(drift, rel=1e-9)
     assert span.ratio == pytest.approx(span.mdd / drift)
+
+
+def test_nail_slip_input_gives_the_four_term_deflection(plan_from):
+    """A wood-panel material given by panel rigidity and nail slip (Gt = 25,000 lb/in,
+    3-ply plywood; en = 0.018 in, IBC 2021 Table 2305.2(1) at 80 lb per fastener; both
+    VALIDATION.md 2.3) at v = 300 plf: the flexible span deflection equals IBC 2021 Eq. 23-1,
+    terms 1–3: 5vL³/(8EAW) + vL/(4Gt) + 0.188·L·en = 0.1875 + 0.300 + 0.3384 in for
+    L = 100 ft, W = 50 ft, EA = 20,000 kip (the apparent Ga is 11.75 kip/in)."""
+    from planshear.idealized import flexible_analysis
+
+    material = '{ kind = "wood-panel", Gt = "25000 lbf/in", en = "0.018 in", at_unit_shear = "300 plf" }'
+    plan = plan_from(box(walls=END_WALLS, material=material, chord_EA="20000 kip", load=AREA_LOAD, mesh_size=5.0))
+    assert plan.material.Gt / (KIP / INCH) == pytest.approx(11.748, rel=1e-3)
+    (span,) = flexible_analysis(plan, expand_load_cases(plan)).cases["E+y"].extra["span_deflections"]
+    expected = 5 * 300 * 100**3 / (8 * 20000e3 * 50) + 300 * 100 / (4 * 25000) + 0.188 * 100 * 0.018
+    # 0.75 % of the bending term is the membrane's own Et = 0.1·Gt, which the equation leaves out.
+    assert (span.bending + span.shear) / INCH == pytest.approx(expected, rel=0.005)
+    assert span.shear / INCH == pytest.approx(300 * 100 / (4 * 25000) + 0.188 * 100 * 0.018, rel=1e-4)
