@@ -162,6 +162,11 @@ def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
     return SeismicWeight(total, field.centroid() if total > 0 else np.zeros(2), field)
 
 
+def _band(s_index: int, s0: float, s1: float, t0: float, t1: float) -> Polygon:
+    """The rectangle s0 ≤ s ≤ s1, t0 ≤ t ≤ t1 (m), s being x when ``s_index`` is 0, else y."""
+    return shapely.box(s0, t0, s1, t1) if s_index == 0 else shapely.box(t0, s0, t1, s1)
+
+
 def spread_across_depth(plan: Plan, start: np.ndarray, end: np.ndarray, force: float, axis: str):
     """A force ``force`` (N) along ``axis``, uniform along the segment start–end, carried
     across the depth of the diaphragm along its line of action: at each station s of the
@@ -189,7 +194,7 @@ def spread_across_depth(plan: Plan, start: np.ndarray, end: np.ndarray, force: f
     for a, b in zip(knots[:-1], knots[1:], strict=True):
         if b - a <= 1e-9 * size:
             continue
-        band = shapely.box(a, lo, b, hi) if s_index == 0 else shapely.box(lo, a, hi, b)
+        band = _band(s_index, a, b, lo, hi)
         parts = [g for g in getattr(plan.region.intersection(band), "geoms", [plan.region.intersection(band)])
                  if isinstance(g, Polygon) and g.area > 0]
         if not parts:
@@ -214,8 +219,7 @@ def _uniform_per_station(parts: list[Polygon], force: float, a: float, b: float,
         return [(merged, force / merged.area)]
     halves = []
     for c0, c1 in ((a, middle), (middle, b)):
-        box = shapely.box(c0, lo, c1, hi) if s_index == 0 else shapely.box(lo, c0, hi, c1)
-        halves.append(merged.intersection(box))
+        halves.append(merged.intersection(_band(s_index, c0, c1, lo, hi)))
     centres = [h.centroid.coords[0][s_index] for h in halves]
     first = force * (centres[1] - middle) / (centres[1] - centres[0])
     return [(halves[0], first / halves[0].area), (halves[1], (force - first) / halves[1].area)]
@@ -246,7 +250,7 @@ def torsion_areas(plan: Plan, axis: str, direction: np.ndarray, torsion: float) 
     edges = np.linspace(lo, hi, TORSION_STRIPS + 1)
     strips = []
     for a, b in zip(edges[:-1], edges[1:], strict=True):
-        band = shapely.box(a, t_lo, b, t_hi) if s_index == 0 else shapely.box(t_lo, a, t_hi, b)
+        band = _band(s_index, a, b, t_lo, t_hi)
         strip = plan.region.intersection(band)
         if strip.area > 0:
             strips.append((strip, strip.area, strip.centroid.coords[0][s_index]))

@@ -28,8 +28,10 @@ import numpy as np
 import shapely
 
 from planshear.fem import Solution
+from planshear.fem.model import element_polygons
 from planshear.plan import Plan
 
+from .beam_analogy import sections
 from .sections import section_average
 
 __all__ = ["SpanCheck", "DirectionCheck", "Classification", "classify", "BEHAVIOUR_LIMIT"]
@@ -128,15 +130,15 @@ def _point_on_section(plan: Plan, s_index: int, s: float) -> np.ndarray:
     return np.asarray(longest.interpolate(0.5, normalized=True).coords[0])
 
 
-def _relative(mesh, plan: Plan, along: np.ndarray, s_index: int, stations: np.ndarray, s0: float, s1: float,
-              drift_left: np.ndarray, drift_right: np.ndarray) -> np.ndarray:
+def _relative(mesh, cells, plan: Plan, along: np.ndarray, s_index: int, stations: np.ndarray, s0: float,
+              s1: float, drift_left: np.ndarray, drift_right: np.ndarray) -> np.ndarray:
     """Depth-averaged displacement along the load at each station (n_s, n_cases), less the
     straight line between the support drifts (m)."""
     # Stations exactly on the span ends are nudged inside: the section there may run along
     # an outline edge, which would be cut ambiguously.
     eps = 1e-7 * (s1 - s0)
     probe = np.clip(stations, s0 + eps, s1 - eps)
-    average, _ = section_average(mesh, along, plan.region, s_index, probe)
+    average, _ = section_average(mesh, along, plan, s_index, probe, cells=cells)
     line = drift_left[None, :] + (drift_right - drift_left)[None, :] * ((stations - s0) / (s1 - s0))[:, None]
     return average - line
 
@@ -146,6 +148,7 @@ def classify(plan: Plan, solution: Solution) -> Classification:
     from planshear.idealized import lines_of_resistance
 
     mesh = solution.assembly.mesh
+    cells = element_polygons(mesh)  # one R-tree for every section of every span
     directions = {}
     for axis in ("x", "y"):
         base = [(j, c) for j, c in enumerate(solution.cases) if c.axis == axis and c.eccentricity_sign == 0]
@@ -163,8 +166,6 @@ def classify(plan: Plan, solution: Solution) -> Classification:
         lo, hi = plan.outline[:, s_index].min(), plan.outline[:, s_index].max()
         if supports and (supports[0][1] > lo + 1e-9 or supports[-1][1] < hi - 1e-9):
             notes.append("parts of the diaphragm beyond the end lines (cantilevers) are not classified")
-        from .beam_analogy import sections
-
         partial = {}  # lines whose walls cover less than half the diaphragm on the line
         for name, s_line, walls in supports:
             present = float(sections(plan, plan.region, s_index, np.array([s_line]))[0][0])
@@ -179,13 +180,13 @@ def classify(plan: Plan, solution: Solution) -> Classification:
                  for name, _, _ in supports}
         for (left, s0, _), (right, s1, _) in zip(supports[:-1], supports[1:], strict=True):
             stations = np.linspace(s0, s1, STATIONS_PER_SPAN + 1)
-            relative = _relative(mesh, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
+            relative = _relative(mesh, cells, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
             # Refine around the largest value of each case (the curve is smooth there).
             step = (s1 - s0) / STATIONS_PER_SPAN
             peaks = stations[np.argmax(np.abs(relative), axis=0)]
             fine = np.unique(np.clip(np.concatenate([p + np.linspace(-step, step, 21) for p in peaks]), s0, s1))
             stations = np.unique(np.concatenate([stations, fine]))
-            relative = _relative(mesh, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
+            relative = _relative(mesh, cells, plan, along, s_index, stations, s0, s1, drift[left], drift[right])
             inside = (s_nodes >= s0) & (s_nodes <= s1)
             for column, (_, case) in enumerate(base):
                 k = int(np.argmax(np.abs(relative[:, column])))

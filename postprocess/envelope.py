@@ -14,6 +14,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
 
+from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
 from planshear.loads import LoadCase
 from planshear.results import MethodResult
 
@@ -211,8 +212,6 @@ def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -
     tension, compression) × ``factor``, and their §12.10.2.1 values too where those do not
     include Ω0 (item 3, the Exception 1 cap, no overstrength). ``reason`` names the
     irregularities; it is recorded with each collector's rule."""
-    from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
-
     def scaled(g: Governing | None) -> Governing | None:
         return None if g is None else Governing(factor * g.value, g.assumption, g.case, g.factor)
 

@@ -17,7 +17,11 @@ import numpy as np
 import shapely
 
 from planshear.fem.elements import natural_coordinates, shape_functions
+from planshear.fem.model import element_polygons
 from planshear.mesh import Mesh
+from planshear.plan import Plan
+
+from .beam_analogy import _cut_lines
 
 __all__ = ["interpolate", "section_average", "SAMPLES_PER_SECTION"]
 
@@ -27,15 +31,10 @@ __all__ = ["interpolate", "section_average", "SAMPLES_PER_SECTION"]
 SAMPLES_PER_SECTION = 160
 
 
-def _corners(mesh: Mesh) -> int:
-    return 3 if mesh.element_type.startswith("tri") else 4
-
-
-def _locate(mesh: Mesh, points: np.ndarray) -> np.ndarray:
-    """Element index (n,) containing each point (−1 where none does)."""
-    corners = _corners(mesh)
-    polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
-    tree = shapely.STRtree(polygons)
+def _locate(cells: tuple, points: np.ndarray) -> np.ndarray:
+    """Element index (n,) containing each point (−1 where none does); ``cells`` from
+    :func:`planshear.fem.model.element_polygons`."""
+    _, tree, _ = cells
     hits = tree.query(shapely.points(points), predicate="intersects")
     found = np.full(len(points), -1)
     # A point on a shared edge or node lies in several elements: any one gives the same value.
@@ -44,17 +43,19 @@ def _locate(mesh: Mesh, points: np.ndarray) -> np.ndarray:
     return found
 
 
-def interpolate(mesh: Mesh, field: np.ndarray, points: np.ndarray) -> np.ndarray:
+def interpolate(mesh: Mesh, field: np.ndarray, points: np.ndarray, cells: tuple | None = None) -> np.ndarray:
     """Nodal ``field`` (n_nodes, ...) evaluated at ``points`` (n, 2) with the elements'
-    shape functions: array (n, ...). Points outside the mesh give NaN."""
+    shape functions: array (n, ...). Points outside the mesh give NaN. ``cells`` (from
+    :func:`planshear.fem.model.element_polygons`) may be passed to reuse its R-tree."""
+    cells = cells if cells is not None else element_polygons(mesh)
     finite = np.all(np.isfinite(points), axis=1)
     element = np.full(len(points), -1)
-    element[finite] = _locate(mesh, points[finite])
+    element[finite] = _locate(cells, points[finite])
     inside = element >= 0
     result = np.full((len(points),) + field.shape[1:], np.nan)
     if not np.any(inside):
         return result
-    corners = mesh.nodes[mesh.elements[element[inside], : _corners(mesh)]]
+    corners = mesh.nodes[mesh.elements[element[inside], : cells[2]]]
     ref = natural_coordinates(mesh.element_type, corners, points[inside])
     N, _ = shape_functions(mesh.element_type, ref)  # (n_in, n_nodes_e)
     values = field[mesh.elements[element[inside]]]  # (n_in, n_nodes_e, ...)
@@ -62,16 +63,11 @@ def interpolate(mesh: Mesh, field: np.ndarray, points: np.ndarray) -> np.ndarray
     return result
 
 
-def section_points(region, s_index: int, stations: np.ndarray, samples: int = SAMPLES_PER_SECTION):
+def section_points(plan: Plan, s_index: int, stations: np.ndarray, samples: int = SAMPLES_PER_SECTION):
     """Sample points (n_s, samples, 2) at the midpoints of ``samples`` equal parts of the
-    length of ``region`` cut at each station s, and that length (n_s,) in m."""
-    bounds = np.asarray(region.bounds)
-    t_index = 1 - s_index
-    lo, hi = bounds[t_index] - 1.0, bounds[t_index + 2] + 1.0
-    coords = np.zeros((len(stations), 2, 2))
-    coords[:, :, s_index] = stations[:, None]
-    coords[:, 0, t_index], coords[:, 1, t_index] = lo, hi
-    cuts = shapely.intersection(region, shapely.linestrings(coords))
+    length of the diaphragm (openings excluded) cut at each station s, and that length
+    (n_s,) in m."""
+    cuts = shapely.intersection(plan.region, _cut_lines(plan, s_index, stations))
     lengths = shapely.length(cuts)
     fractions = (np.arange(samples) + 0.5) / samples
     # Interpolation along a multi-part cut skips the gaps between its parts.
@@ -80,11 +76,11 @@ def section_points(region, s_index: int, stations: np.ndarray, samples: int = SA
     return xy, lengths
 
 
-def section_average(mesh: Mesh, field: np.ndarray, region, s_index: int, stations: np.ndarray,
-                    samples: int = SAMPLES_PER_SECTION) -> tuple[np.ndarray, np.ndarray]:
-    """Average of the nodal ``field`` (n_nodes, n_cases) along the section of ``region``
+def section_average(mesh: Mesh, field: np.ndarray, plan: Plan, s_index: int, stations: np.ndarray,
+                    samples: int = SAMPLES_PER_SECTION, cells: tuple | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """Average of the nodal ``field`` (n_nodes, n_cases) along the section of the diaphragm
     at each station s (the coordinate with index ``s_index``): (n_s, n_cases), and the
     section length (n_s,) in m."""
-    xy, lengths = section_points(region, s_index, stations, samples)
-    values = interpolate(mesh, field, xy.reshape(-1, 2)).reshape(len(stations), samples, *field.shape[1:])
+    xy, lengths = section_points(plan, s_index, stations, samples)
+    values = interpolate(mesh, field, xy.reshape(-1, 2), cells).reshape(len(stations), samples, *field.shape[1:])
     return np.nanmean(values, axis=1), lengths
