@@ -52,6 +52,12 @@ class BarGroup:
     EA: float
     matrices: np.ndarray  # (m, 2k, 2k)
     implied: bool = False  # an implied collector (see fem/collectors.py), not a declared member
+    edge_EA: np.ndarray | None = None  # (m,) N, per bar; differs from EA where a splice adds slip
+
+    @property
+    def axial_rigidity(self) -> np.ndarray:
+        """EA (N) of every bar of the group, splices included."""
+        return np.full(len(self.edges), self.EA) if self.edge_EA is None else self.edge_EA
 
 
 @dataclass(frozen=True, eq=False)
@@ -160,6 +166,7 @@ def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
     for member, line_mesh in zip(plan.members, mesh.members, strict=True):
         if len(line_mesh.edges):
             bars.append(_bar_group(f"{member.role} on {member.line}", member.role, line_mesh.edges, member.EA, mesh))
+    bars = _with_splices(bars, plan, mesh)
     # Every piece of a line that carries a wall gets a collector: implied bars where no
     # declared member or outline chord is (fem/collectors.py).
     collectors = collector_layout(plan, mesh)
@@ -182,6 +189,41 @@ def assemble(plan: Plan, mesh: Mesh, stiffness_factor: float = 1.0) -> Assembly:
     # One COO → CSR conversion for membrane, bars and springs together.
     stiffness = _coo_to_csr(list(zip(dofs, blocks, strict=True)) + spring_blocks, n)
     return Assembly(mesh, stiffness, D, element_matrices, tuple(bars), tuple(springs), spring_matrix, collectors)
+
+
+def _with_splices(bars: list[BarGroup], plan: Plan, mesh: Mesh) -> list[BarGroup]:
+    """Bar groups with each ``[[splice]]`` as a series spring in the bar through its point:
+    EA_eff = ℓ / (ℓ/EA + 1/k), so the bar's compliance gains the splice's 1/k (k the splice's
+    force per unit slip) and its force stays EA_eff·ε."""
+    if not plan.splices:
+        return bars
+    out = list(bars)
+    taken: set[str] = set()
+    tolerance = 1e-5 * float(np.ptp(plan.outline, axis=0).max())  # the plan reader checked 1e-6 of the size
+    # Declared members first: a splice on a member that is also on the outline sits in the member.
+    for index in sorted(range(len(bars)), key=lambda i: bars[i].name == "chords"):
+        bar = bars[index]
+        xy = mesh.nodes[bar.edges[:, :2]]
+        a, b = xy[:, 0], xy[:, 1]
+        length = np.linalg.norm(b - a, axis=1)
+        EA = bar.axial_rigidity.copy()
+        for splice in plan.splices:
+            if splice.name in taken:
+                continue
+            t = np.clip(np.einsum("mi,mi->m", splice.at - a, b - a) / length**2, 0.0, 1.0)
+            gap = np.linalg.norm(a + t[:, None] * (b - a) - splice.at, axis=1)
+            i = int(np.argmin(gap))
+            if gap[i] <= tolerance:
+                EA[i] = length[i] / (length[i] / EA[i] + 1.0 / splice.stiffness)
+                taken.add(splice.name)
+        if not np.array_equal(EA, bar.axial_rigidity):
+            out[index] = BarGroup(bar.name, bar.role, bar.edges, bar.EA,
+                                  bar_stiffness(mesh.nodes[bar.edges], EA), bar.implied, EA)
+    missed = [s.name for s in plan.splices if s.name not in taken]
+    if missed:
+        raise FEError(f"{plan.source}: splice {', '.join(missed)} found no chord or collector bar at its point in the "
+                      "mesh; put the splice on a chord line or declared member")
+    return out
 
 
 def _bar_group(name: str, role: str, edges: np.ndarray, EA: float, mesh: Mesh, implied: bool = False) -> BarGroup:
@@ -423,7 +465,7 @@ def _stiffness_parts(assembly: Assembly) -> dict[str, float]:
     membrane shear and axial rigidity (largest and smallest over the elements)."""
     extent = float(np.ptp(assembly.mesh.nodes, axis=0).max())
     parts = {f'wall "{s.wall_id}"': s.stiffness for s in assembly.springs}
-    parts.update({f"{b.name}": b.EA / extent for b in assembly.bars})
+    parts.update({f"{b.name}": float(b.axial_rigidity.max()) / extent for b in assembly.bars})
     parts["diaphragm membrane (shear)"] = float(np.min(assembly.rigidity[:, 2, 2]))
     parts["diaphragm membrane (axial)"] = float(np.min(assembly.rigidity[:, 0, 0]))
     parts["diaphragm membrane (stiffest shear)"] = float(np.max(assembly.rigidity[:, 2, 2]))

@@ -219,6 +219,20 @@ class ClassificationFlags:
 
 
 @dataclass(frozen=True, eq=False)
+class Splice:
+    """A ``[[splice]]`` entry: a chord or collector splice at point ``at`` whose slip adds
+    axial compliance 1/``stiffness`` to the bar through that point. Given as a slip Δc at
+    a stated force (stiffness = force / slip) or as a stiffness directly."""
+
+    name: str
+    at: np.ndarray  # (2,) m
+    stiffness: float  # N/m, force per unit slip
+    slip: float | None = None  # m, Δc as written (None when given as a stiffness)
+    at_force: float | None = None  # N, the force at which ``slip`` occurs
+    on: str = "outline chord"  # "outline chord" or the member it lies on, e.g. 'chord on line "A"'
+
+
+@dataclass(frozen=True, eq=False)
 class Plan:
     """A validated plan in SI units. ``region`` is the outline less the openings."""
 
@@ -254,6 +268,7 @@ class Plan:
             return self.chord_EA, "chord_EA"
         return None, None
     transfers: tuple[Transfer, ...] = ()
+    splices: tuple[Splice, ...] = ()
 
     def line(self, name: str) -> GridLine:
         for grid_line in self.grid_lines:
@@ -474,6 +489,7 @@ class _PlanBuilder:
         members = self.members(doc.get("member", []), lines_by_name, region)
         loads = self.loads(doc.get("load", []), lines_by_name, zones, region)
         transfers = self.transfers(doc.get("transfer", []), lines_by_name)
+        splices = self.splices(doc.get("splice", []), outline, chord_EA, members, lines_by_name)
         mesh = self.mesh_settings(doc.get("mesh", {}), size)
         classification = self.classification(doc.get("classification", {}))
         chosen = self.design_envelope(doc.get("design", {}))
@@ -499,6 +515,7 @@ class _PlanBuilder:
             classification=classification,
             collector_EA=collector_EA,
             transfers=tuple(transfers),
+            splices=tuple(splices),
             design_envelope=chosen,
             code=code,
             design_basis=basis,
@@ -748,6 +765,54 @@ class _PlanBuilder:
                 continue
             members.append(Member(role, line.name, t0, t1, EA, width * self.scale))
         return members
+
+    def splices(self, raw: list, outline: Polygon, chord_EA: float | None, members: list[Member],
+                lines: dict[str, GridLine]) -> list[Splice]:
+        """``[[splice]]`` entries: a point on an outline chord (needs ``chord_EA``) or on a
+        declared member, with ``slip`` and ``at_force`` or with ``stiffness``."""
+        found: list[Splice] = []
+        for i, entry in enumerate(raw):
+            name = entry.get("name", f"S{i + 1}")
+            where = f'splice "{name}"' if "name" in entry else f"splice #{i + 1}"
+            if any(s.name == name for s in found):
+                self.problem(where, "the name is used twice; give every splice its own name")
+                continue
+            given = {k for k in ("slip", "at_force", "stiffness") if k in entry}
+            if given not in ({"slip", "at_force"}, {"stiffness"}):
+                self.problem(where, 'give either slip and at_force (the slip Δc at that chord force, e.g. slip = '
+                                    '"0.03 in", at_force = "8 kip") or stiffness (e.g. "250 kip/in"), not '
+                                    + (", ".join(sorted(given)) or "neither"))
+                continue
+            at = self.points(entry["at"], where + ".at")
+            if at is None:
+                continue
+            if given == {"stiffness"}:
+                k = self.quantity(entry["stiffness"], STIFFNESS, where + ".stiffness")
+                slip = force = None
+            else:
+                slip = self.quantity(entry["slip"], LENGTH, where + ".slip")
+                force = self.quantity(entry["at_force"], FORCE, where + ".at_force")
+                k = None if slip is None or force is None else force / slip
+            if k is None:
+                continue
+            point = Point(at)
+            on = None
+            for member in members:
+                if lines[member.line].segment(member.t_from, member.t_to).distance(point) <= self.tol:
+                    on = f'{member.role} on line "{member.line}"'
+                    break
+            if on is None and outline.exterior.distance(point) <= self.tol:
+                if chord_EA is None:
+                    self.problem(where, "lies on the outline, which has no chord bar; give diaphragm.chord_EA (or a "
+                                        "[[member]] chord on that line) so the splice has a chord to sit in")
+                    continue
+                on = "outline chord"
+            if on is None:
+                self.problem(where, f"at ({entry['at'][0]}, {entry['at'][1]}) is neither on the outline chord nor on a "
+                                    "[[member]]; a splice sits in a chord or collector: move it onto one")
+                continue
+            found.append(Splice(name, np.asarray(at, dtype=float), k, slip, force, on))
+        return found
 
     def transfers(self, raw: list, lines: dict[str, GridLine]) -> list[Transfer]:
         """``[[transfer]]`` entries: two distinct parallel grid lines of grid.x or grid.y."""

@@ -232,8 +232,10 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     )
     flexible = doc["assumptions"].get("flexible", {}).get("cases", {})
     tables["span_deflection"] = (
-        ["case", "span", f"MDD ({d})", f"at ({p})", f"bending ({d})", f"shear ({d})", f"ADVE ({d})", "MDD/ADVE"],
-        [[name, sp["span"], sp["MDD"], sp["MDD_at"], sp["bending"], sp["shear"], sp["ADVE"], sp["ratio"]]
+        ["case", "span", f"MDD ({d})", f"at ({p})", f"bending ({d})", f"shear ({d})", f"splice slip ({d})",
+         f"ADVE ({d})", "MDD/ADVE"],
+        [[name, sp["span"], sp["MDD"], sp["MDD_at"], sp["bending"], sp["shear"], sp["splice_slip"], sp["ADVE"],
+          sp["ratio"]]
          for name, case in flexible.items() for sp in case.get("span_deflections", [])],
     )
     drift = doc.get("drift") or {"walls": {}, "lines": {}}

@@ -180,7 +180,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             out[key] = [
                 {"span": f"{d.left_line}-{d.right_line}", "MDD": _r(units.displacement_out(d.mdd)),
                  "MDD_at": _r(units.length_out(d.at)), "bending": _r(units.displacement_out(d.bending)),
-                 "shear": _r(units.displacement_out(d.shear)), "ADVE": _r(units.displacement_out(d.adve)),
+                 "shear": _r(units.displacement_out(d.shear)),
+                 "splice_slip": _r(units.displacement_out(d.splice_slip)), "ADVE": _r(units.displacement_out(d.adve)),
                  "ratio": _r(d.ratio) if np.isfinite(d.ratio) else None}
                 for d in value
             ]

@@ -421,6 +421,14 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
             for c in cases
         ],
     }
+    if plan.splices:
+        summary["splices"] = {
+            sp.name: {"at": [round(units.length_out(c), 6) for c in sp.at], "on": sp.on,
+                      "stiffness": round(units.stiffness_out(sp.stiffness), 6),
+                      "slip": None if sp.slip is None else round(units.displacement_out(sp.slip), 6),
+                      "at_force": None if sp.at_force is None else round(units.force_out(sp.at_force), 6)}
+            for sp in plan.splices
+        }
     for load in plan.loads:
         entry: dict = {"kind": load.kind, "directions": list(load.directions)}
         if load.kind == "seismic":

@@ -217,6 +217,21 @@ PLAN_SCHEMA: dict = {
                 "additionalProperties": False,
             },
         },
+        "splice": {
+            "type": "array",
+            "items": {
+                "type": "object",
+                "required": ["at"],
+                "properties": {
+                    "name": {"type": "string"},
+                    "at": POINT,
+                    "slip": QUANTITY,
+                    "at_force": QUANTITY,
+                    "stiffness": QUANTITY,
+                },
+                "additionalProperties": False,
+            },
+        },
         "transfer": {
             "type": "array",
             "items": {

@@ -13,8 +13,16 @@ membrane's own Et·d³/12 in proportion to the length present, and G·t·ℓ the
 rigidity summed over the section's length present (zones with their own Gt, openings
 excluded). For a rectangle under a uniform load this is exactly the bending and shear
 terms of SDPWS-2015 Eq. 4.2-1 (5vL³/(8EAW) + 0.25vL/(1000Ga)) and of the steel-deck
-deflection by G′ (wL²/(8bG′) + 5wL⁴/(384EI)); chord-splice slip and nail slip are not
-included. Units SI.
+deflection by G′ (wL²/(8bG′) + 5wL⁴/(384EI)). Nail slip enters through the apparent G·t
+of wood panels given by Gt and eₙ (planshear.plan). Chord-splice slip adds, for each
+``[[splice]]`` in one of the span's two extreme chords,
+
+    δ_splice(a) = m_a(x) · M(x) / (d(x)² · k)
+
+the unit-load chord force m_a/d times the splice's slip M/(d·k) under the real chord force:
+at midspan of a uniformly loaded rectangle this is x·Δc/(2W), the slip term of SDPWS-2015
+Eq. 4.2-1. Splices in members inside the outline (chords at openings) are not in these
+beams; the finite-element model carries them. Units SI.
 """
 
 from __future__ import annotations
@@ -45,6 +53,7 @@ class SpanDeflection:
     at: float  # m, station of the largest deflection along the span axis
     bending: float  # m, flexural part at that station
     shear: float  # m, shear part at that station
+    splice_slip: float  # m, chord-splice slip part at that station (0 without splices)
     adve: float  # m, mean of the two supports' drifts
     ratio: float  # mdd / adve
 
@@ -63,6 +72,21 @@ def _section_rigidities(plan: Plan, s_index: int, s: np.ndarray, span_axis: str)
     if plan.chord_EA is not None:
         bending = bending + plan.chord_EA * depth**2 / 2.0
     return bending, shear
+
+
+def _span_splices(plan: Plan, s_index: int, s0: float, s1: float) -> list[tuple[float, float, float]]:
+    """(station m, depth m, k N/m) of each splice on an extreme chord of the outline within
+    the span (s0, s1): the outline section's top or bottom at the splice's station."""
+    found = []
+    tolerance = 1e-5 * float(np.ptp(plan.outline, axis=0).max())
+    for splice in plan.splices:
+        station, across = float(splice.at[s_index]), float(splice.at[1 - s_index])
+        if not s0 < station < s1:
+            continue
+        _, lo, hi = sections(plan, shapely.Polygon(plan.outline), s_index, np.array([station]))
+        if min(abs(across - lo[0]), abs(across - hi[0])) <= tolerance and hi[0] > lo[0]:
+            found.append((station, float(hi[0] - lo[0]), splice.stiffness))
+    return found
 
 
 def span_deflections(plan: Plan, axis: str, applied: SpanLoad, supports: list[tuple[str, float]],
@@ -85,6 +109,9 @@ def span_deflections(plan: Plan, axis: str, applied: SpanLoad, supports: list[tu
         V = reaction - in_span
         M = reaction * (s - s0) - about_s
         EI, GtL = _section_rigidities(plan, s_index, s, span_axis)
+        splices = _span_splices(plan, s_index, s0, s1)
+        # Real chord-splice slip M(x)/(d·k) at each splice, times the unit load's m(x)/d below.
+        slip_terms = [(x, np.interp(x, s, M) / (d * d * k)) for x, d, k in splices]
         best = None
         for a in np.linspace(s0, s1, POSITIONS)[1:-1]:
             xi = (a - s0) / length
@@ -92,11 +119,12 @@ def span_deflections(plan: Plan, axis: str, applied: SpanLoad, supports: list[tu
             m = np.where(s < a, (1.0 - xi) * (s - s0), xi * (s1 - s))
             bending = float(np.trapezoid(np.divide(M * m, EI, out=np.zeros_like(s), where=EI > 0), s))
             shear = float(np.trapezoid(np.divide(V * v, GtL, out=np.zeros_like(s), where=GtL > 0), s))
-            if best is None or abs(bending + shear) > abs(best[1] + best[2]):
-                best = (a, bending, shear)
-        a, bending, shear = best
+            slip = sum(float((1.0 - xi) * (x - s0) if x < a else xi * (s1 - x)) * term for x, term in slip_terms)
+            if best is None or abs(bending + shear + slip) > abs(sum(best[1:])):
+                best = (a, bending, shear, slip)
+        a, bending, shear, slip = best
         adve = 0.5 * (abs(drifts[left]) + abs(drifts[right]))
-        mdd = abs(bending + shear)
-        out.append(SpanDeflection(left, right, mdd, float(a), bending, shear, adve,
+        mdd = abs(bending + shear + slip)
+        out.append(SpanDeflection(left, right, mdd, float(a), bending, shear, slip, adve,
                                   mdd / adve if adve > 0 else float("inf")))
     return out

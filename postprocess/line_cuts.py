@@ -146,7 +146,7 @@ def cut_line(plan: Plan, solution: Solution, grid_line: GridLine, incidence: sp.
         if np.any(mine):
             a, b = pos[mine, 0], pos[mine, 1]
             forward = (a < b)[:, None, None]
-            axial = bar_axial_force(mesh.nodes[bar.edges[mine]], np.full(int(mine.sum()), bar.EA),
+            axial = bar_axial_force(mesh.nodes[bar.edges[mine]], bar.axial_rigidity[mine],
                                     solution.displacements[element_dofs(bar.edges[mine])], ends)
             # Both in line order: the end of smaller t first.
             axial_parts.append(np.where(forward, axial, axial[:, ::-1]))
@@ -253,7 +253,7 @@ def outline_edge_chords(plan: Plan, solution: Solution) -> dict[str, tuple[np.nd
     mesh = assembly.mesh
     n_cases = solution.displacements.shape[1]
     xy = mesh.nodes[bar.edges]
-    axial = bar_axial_force(xy, np.full(len(bar.edges), bar.EA),
+    axial = bar_axial_force(xy, bar.axial_rigidity,
                             solution.displacements[element_dofs(bar.edges)], np.array([-1.0, 1.0]))
     outline = plan.outline
     for i in range(len(outline)):
