@@ -141,6 +141,10 @@ def _print_check(summary: dict) -> None:
             line += " (total given in the plan)"
         if "fx" in load:
             line += f"; walls and drifts at Fx = {load['fx']:.5g} {force}"
+        if "fx_distribution" in load:
+            elf = load["fx_distribution"]
+            line += (f" (level {elf['level']} of the ELF distribution, k = {elf['k']:.3g}; ΣFi/Σwi at and above it "
+                     f"{elf['story_force_ratio']:.4g})")
         print(line)
     print(f"  load cases: {', '.join(summary['cases'])}")
 

@@ -24,7 +24,7 @@ import shapely
 from shapely.geometry import LineString, Point, Polygon
 
 from .code import DEFAULT_EDITION, EDITIONS
-from .code.asce7_16 import SDCS
+from .code.asce7_16 import SDCS, ElfDistribution, elf_distribution_12_8_3
 from .errors import PlanError, UnstablePlanError
 from .schema import schema_problems
 from .stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
@@ -195,6 +195,8 @@ class Load:
     collector_overstrength: float = 1.0
     light_frame: bool = False  # braced entirely by light-frame shear walls (ASCE 7-16 §12.10.2.1 Exception 2)
     fx: float | None = None  # N, story force Fx for the vertical elements (ELF, §12.8.3); None: the case force
+    fx_elf: ElfDistribution | None = None  # the §12.8.3 distribution Fx came from, when given by its inputs
+    fpx_ratio_from_elf: bool = False  # fpx's story_force_ratio was computed from ``fx_elf``
     rho: float = 1.0  # redundancy factor ρ (ASCE 7-16 §12.3.4) on the vertical elements' seismic load effect
     drift: tuple[float, float, float, float] | None = None  # (Cd, Ie, story height m, allowable Δa/hsx)
     sdc: str | None = None  # Seismic Design Category "A"…"F" (seismic loads), for Table 12.3-1
@@ -961,6 +963,10 @@ class _PlanBuilder:
                              '(ASCE 7-16 Eq. 12.10-1)')
                 continue
             total = self.quantity(entry["total"], FORCE, where + ".total") if has_total else None
+            elf = self.elf(entry["fx"], where + ".fx") if isinstance(entry.get("fx"), dict) else None
+            if isinstance(entry.get("fx"), dict) and elf is None:
+                continue
+            fx = elf.fx if elf is not None else (self.quantity(entry["fx"], FORCE, where + ".fx") if "fx" in entry else None)
             fpx = None
             if has_fpx:
                 raw_fpx = entry["fpx"]
@@ -968,14 +974,17 @@ class _PlanBuilder:
                     self.problem(where + ".fpx.ratio", "was renamed story_force_ratio (ΣFi/Σwi for the levels at and above "
                                  f"this one, ASCE 7-16 Eq. 12.10-1): write story_force_ratio = {raw_fpx['ratio']:g}")
                     continue
-                if "story_force_ratio" not in raw_fpx:
+                if "story_force_ratio" not in raw_fpx and elf is None:
                     self.problem(where + ".fpx", 'needs "story_force_ratio" (ΣFi/Σwi for the levels at and above this one, '
-                                 "ASCE 7-16 Eq. 12.10-1), e.g. story_force_ratio = 0.15")
+                                 "ASCE 7-16 Eq. 12.10-1), e.g. story_force_ratio = 0.15, or fx = { base_shear, heights, "
+                                 "weights, level, period } from which it is computed")
                     continue
                 values = [self.number(float(raw_fpx[k]), f"{where}.fpx.{k}", positive=True, allow_zero=False)
-                          for k in ("SDS", "Ie", "story_force_ratio")]
+                          for k in ("SDS", "Ie", "story_force_ratio") if k in raw_fpx]
                 if any(v is None for v in values):
                     continue
+                if len(values) == 2:  # the ratio of Eq. 12.10-1 from the §12.8.3 distribution
+                    values.append(elf.story_force_ratio)
                 fpx = tuple(values)
             sdc = entry.get("sdc")
             if sdc is not None and sdc not in SDCS:
@@ -992,12 +1001,64 @@ class _PlanBuilder:
                      point_footprints=tuple(footprints), total=total, fpx=fpx,
                      eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)),
                      drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx), sdc=sdc,
-                     fx=self.quantity(entry["fx"], FORCE, where + ".fx") if "fx" in entry else None,
+                     fx=fx, fx_elf=elf, fpx_ratio_from_elf=has_fpx and "story_force_ratio" not in entry["fpx"],
                      rho=self.rho(entry.get("rho", 1.0), where + ".rho"))
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')
         return loads
+
+    def elf(self, raw: dict, where: str) -> ElfDistribution | None:
+        """``fx = { base_shear, heights, weights, level, period | k }``: the story force Fx of
+        the diaphragm's level from the ELF vertical distribution, ASCE 7-16 §12.8.3."""
+        example = ('e.g. fx = { base_shear = "180 kip", heights = ["12 ft", "24 ft"], weights = ["900 kip", '
+                   '"600 kip"], level = 2, period = 0.4 }')
+        known = {"base_shear", "heights", "weights", "level", "period", "k"}
+        unknown = sorted(set(raw) - known)
+        missing = sorted({"base_shear", "heights", "weights", "level"} - set(raw))
+        if unknown or missing or ("period" in raw) == ("k" in raw):
+            self.problem(where, ("unknown key " + ", ".join(unknown) + "; " if unknown else "")
+                         + ("missing " + ", ".join(missing) + "; " if missing else "")
+                         + "give base_shear, heights and weights of every level (bottom first, heights above the "
+                         "base), level (this diaphragm's, 1 = lowest) and either period (T in s) or k; " + example)
+            return None
+        if not isinstance(raw["heights"], list) or not isinstance(raw["weights"], list):
+            self.problem(where, "heights and weights must be lists, one entry per level; " + example)
+            return None
+        V = self.quantity(raw["base_shear"], FORCE, where + ".base_shear")
+        heights = [self.quantity(h, LENGTH, f"{where}.heights #{i + 1}") for i, h in enumerate(raw["heights"])]
+        weights = [self.quantity(w, FORCE, f"{where}.weights #{i + 1}") for i, w in enumerate(raw["weights"])]
+        if V is None or None in heights or None in weights:
+            return None
+        if not heights or len(heights) != len(weights):
+            self.problem(where, f"heights ({len(heights)}) and weights ({len(weights)}) must list the same levels, "
+                                "bottom first; " + example)
+            return None
+        if any(b <= a for a, b in zip([0.0] + heights[:-1], heights, strict=True)):
+            self.problem(where + ".heights", "must be above the base and increase from the lowest level up")
+            return None
+        for key in ("period", "k"):
+            if key in raw and (isinstance(raw[key], bool) or not isinstance(raw[key], (int, float))):
+                self.problem(f"{where}.{key}", f"must be a number ({'seconds' if key == 'period' else 'from 1 to 2'}), "
+                                               f"got {raw[key]!r}")
+                return None
+        level = raw["level"]
+        if isinstance(level, bool) or not isinstance(level, int) or not 1 <= level <= len(heights):
+            self.problem(where + ".level", f"must be the diaphragm's level number, 1 (lowest) to {len(heights)}, got {level!r}")
+            return None
+        if "k" in raw:
+            k = self.number(float(raw["k"]), where + ".k", positive=True)
+            if k is not None and not 1.0 <= k <= 2.0:
+                self.problem(where + ".k", f"ASCE 7-16 §12.8.3 gives k from 1 to 2; got {k:g}")
+                return None
+            period = None
+        else:
+            k, period = None, self.number(float(raw["period"]), where + ".period", positive=True, allow_zero=False)
+            if period is None:
+                return None
+        if "k" in raw and k is None:
+            return None
+        return elf_distribution_12_8_3(V, heights, weights, level - 1, period=period, k=k)
 
     def mesh_settings(self, raw: dict, size: float) -> MeshSettings:
         element = raw.get("element", "triangle")

@@ -185,7 +185,9 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
         [[n, ld["kind"], ", ".join(ld["directions"]), ld.get("seismic_weight"), ld["force"].get("x"),
           ld["force"].get("y"), ld["collector_overstrength"], _force_source(ld),
           *[(ld.get("fpx_values") or {}).get(eq) for eq in ("12.10-1", "12.10-2", "12.10-3")],
-          f"Fx = {ld['fx']}" if "fx" in ld else "the same force", ld.get("combination", "")]
+          (f"Fx = {ld['fx']}" + (f" (ELF level {ld['fx_distribution']['level']}, k = {ld['fx_distribution']['k']:.3g})"
+                                 if "fx_distribution" in ld else "")) if "fx" in ld else "the same force",
+          ld.get("combination", "")]
          for n, ld in plan["loads"].items()],
     )
     classification = doc.get("classification") or {"directions": {}}

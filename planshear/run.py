@@ -446,6 +446,19 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
                 entry["fpx_equation"] = None
                 entry["force_source"] = "total given in the plan (not Fpx from ASCE 7-16 §12.10.1.1)"
             diaphragm = "Fpx" if load.fpx is not None else "the given total"
+            if load.fx_elf is not None:
+                elf = load.fx_elf
+                entry["fx_distribution"] = {
+                    "clause": "ASCE 7-16 §12.8.3, Eqs. 12.8-11 and 12.8-12",
+                    "k": round(elf.k, 6), "level": elf.level + 1,
+                    "Cvx": [round(c, 6) for c in elf.cvx],
+                    "Fx": [round(units.force_out(f), 6) for f in elf.forces],
+                    "story_force_ratio": round(elf.story_force_ratio, 6),
+                }
+                if load.fpx is not None:
+                    entry["story_force_ratio_source"] = (
+                        "ΣFi/Σwi over this level and those above, from the §12.8.3 distribution"
+                        if load.fpx_ratio_from_elf else "given in fpx")
             if load.fx is not None:
                 entry["fx"] = round(units.force_out(load.fx), 6)
                 entry["force_basis"] = {"walls, line reactions, wall drifts": "Fx (fx given)",

@@ -301,3 +301,80 @@ def test_torsional_amplification_is_applied_to_the_eccentric_cases(plan_from):
             assert case.eccentricity == pytest.approx(ax * ecc[case.name], rel=1e-3)  # Ax rounded to 4 digits
     assert any("12.8.4.3" in text for text in amplified.applied_consequences)
     assert not any("12.8.4.3" in text for text in base.applied_consequences)
+
+
+@pytest.mark.parametrize(("period", "k"), [(0.3, 1.0), (0.5, 1.0), (1.5, 1.5), (2.5, 2.0), (3.2, 2.0)])
+def test_elf_exponent_of_12_8_3(period, k):
+    """§12.8.3: k = 1 for T ≤ 0.5 s, k = 2 for T ≥ 2.5 s, linear interpolation between."""
+    from planshear.code.asce7_16 import elf_exponent_12_8_3
+
+    assert elf_exponent_12_8_3(period) == pytest.approx(k)
+
+
+def test_elf_distribution_of_12_8_3_by_hand():
+    """§12.8.3, Eqs. 12.8-11 and 12.8-12, independent hand arithmetic: V = 100, levels at
+    10, 20, 30 with w = 300, 300, 200 and T = 0.9 s → k = 1.2; w·h^k = 4754.7, 10923.1,
+    11846.1 (Σ 27523.9); Cvx = 0.17275, 0.39687, 0.43039; at level 2 Fx = 39.687 and
+    ΣFi/Σwi over levels 2-3 = (39.687 + 43.039)/500 = 0.16545 (the Eq. 12.10-1 ratio)."""
+    from planshear.code.asce7_16 import elf_distribution_12_8_3
+
+    elf = elf_distribution_12_8_3(100.0, [10.0, 20.0, 30.0], [300.0, 300.0, 200.0], level=1, period=0.9)
+    assert elf.k == pytest.approx(1.2)
+    assert elf.cvx == pytest.approx((0.17275, 0.39687, 0.43039), abs=2e-5)
+    assert sum(elf.forces) == pytest.approx(100.0)
+    assert elf.fx == pytest.approx(39.687, abs=1e-3)
+    assert elf.story_force_ratio == pytest.approx(0.16545, abs=1e-5)
+
+
+def test_elf_inputs_give_fx_and_the_fpx_ratio(plan_from):
+    """A load with fx = { base_shear, heights, weights, level, period } and fpx without
+    story_force_ratio: Fx is the level's §12.8.3 force and Eq. 12.10-1 uses ΣFi/Σwi of the
+    levels at and above it; results.json says so."""
+    from planshear.run import analyze
+
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        fpx = { SDS = 1.0, Ie = 1.0 }
+        fx = { base_shear = "100 kip", heights = ["10 ft", "20 ft", "30 ft"], weights = ["300 kip", "300 kip", "200 kip"], level = 2, period = 0.9 }
+        directions = ["y"]
+        eccentricity = 0
+        ''')
+    plan = plan_from(rectangle_plan(walls=end_walls(), load=load) + '[classification]\nidealized_flexible = true\n')
+    (loaded,) = plan.loads
+    assert loaded.fpx[2] == pytest.approx(0.16545, abs=1e-5)
+    entry = analyze(plan, semirigid=False).to_json()["plan"]["loads"]["E"]
+    assert entry["fx"] == pytest.approx(39.687, abs=1e-3)
+    assert entry["fx_distribution"]["level"] == 2
+    assert "§12.8.3" in entry["story_force_ratio_source"]
+    # wpx = 20 psf × 100 × 50 ft = 100 kip: Eq. 12.10-1 0.16545·100 lies between 20 and 40 kip bounds → 20 kip.
+    assert entry["fpx_values"]["12.10-1"] == pytest.approx(16.545, abs=1e-3)
+    assert entry["fpx_equation"] == "12.10-2"
+
+
+@pytest.mark.parametrize(("fx", "fragment"), [
+    ('{ base_shear = "100 kip", heights = ["10 ft"], weights = ["300 kip"], level = 1 }', "either period"),
+    ('{ base_shear = "100 kip", heights = ["10 ft", "20 ft"], weights = ["300 kip"], level = 1, k = 1 }',
+     "must list the same levels"),
+    ('{ base_shear = "100 kip", heights = ["20 ft", "10 ft"], weights = ["1 kip", "1 kip"], level = 1, k = 1 }',
+     "must be above the base and increase"),
+    ('{ base_shear = "100 kip", heights = ["10 ft"], weights = ["300 kip"], level = 3, k = 1 }', "1 (lowest) to 1"),
+    ('{ base_shear = "100 kip", heights = ["10 ft"], weights = ["300 kip"], level = 1, k = 2.5 }', "k from 1 to 2"),
+])
+def test_bad_elf_inputs_are_refused(plan_from, fx, fragment):
+    from planshear.errors import PlanError
+
+    load = textwrap.dedent(f'''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "30 kip"
+        fx = {fx}
+        directions = ["y"]
+        ''')
+    with pytest.raises(PlanError) as error:
+        plan_from(rectangle_plan(walls=end_walls(), load=load))
+    assert 'load "E".fx' in str(error.value) and fragment in str(error.value)

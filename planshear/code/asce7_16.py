@@ -12,6 +12,9 @@ __all__ = [
     "EDITION",
     "FpxValues",
     "fpx_12_10_1_1",
+    "ElfDistribution",
+    "elf_exponent_12_8_3",
+    "elf_distribution_12_8_3",
     "CollectorRule",
     "collector_rule_12_10_2_1",
     "amplified_displacement_12_8_6",
@@ -78,6 +81,43 @@ class CollectorRule:
     cap: float | None
     governs: str
     note: str = ""
+
+
+@dataclass(frozen=True)
+class ElfDistribution:
+    """Vertical distribution of the ELF base shear, §12.8.3, for the levels listed bottom
+    to top, and what it gives the diaphragm at ``level`` (0-based)."""
+
+    k: float  # distribution exponent
+    cvx: tuple[float, ...]  # vertical distribution factors Cvx, Eq. 12.8-12
+    forces: tuple[float, ...]  # Fx = Cvx·V at every level, Eq. 12.8-11 (N)
+    level: int
+    story_force_ratio: float  # ΣFi/Σwi over the levels i ≥ level (Eq. 12.10-1)
+
+    @property
+    def fx(self) -> float:
+        """Story force Fx (N) at the diaphragm's level."""
+        return self.forces[self.level]
+
+
+def elf_exponent_12_8_3(period: float) -> float:
+    """§12.8.3: k = 1 for T ≤ 0.5 s, 2 for T ≥ 2.5 s, linear in between (``period`` T in s)."""
+    return float(min(2.0, max(1.0, 1.0 + (period - 0.5) / 2.0)))
+
+
+def elf_distribution_12_8_3(base_shear: float, heights: list[float], weights: list[float], level: int,
+                            period: float | None = None, k: float | None = None) -> ElfDistribution:
+    """§12.8.3, Eqs. 12.8-11 and 12.8-12: Fx = Cvx·V with Cvx = wx·hx^k / Σ wi·hi^k, for
+    levels at ``heights`` (any length unit, above the base) with seismic weights
+    ``weights`` (N); ``level`` is the diaphragm's level (0-based, bottom first); k from the
+    period T (s) unless given. Also ΣFi/Σwi over the levels at and above ``level``, the
+    ratio of Eq. 12.10-1."""
+    exponent = elf_exponent_12_8_3(period) if k is None else float(k)
+    terms = [w * h**exponent for w, h in zip(weights, heights, strict=True)]
+    cvx = tuple(t / sum(terms) for t in terms)
+    forces = tuple(c * base_shear for c in cvx)
+    ratio = sum(forces[level:]) / sum(weights[level:])
+    return ElfDistribution(exponent, cvx, forces, level, ratio)
 
 
 def collector_rule_12_10_2_1(omega0: float, case_force: float, fpx: FpxValues | None,
