@@ -146,6 +146,11 @@ def _print_check(summary: dict) -> None:
             line += (f" (level {elf['level']} of the ELF distribution, k = {elf['k']:.3g}; ΣFi/Σwi at and above it "
                      f"{elf['story_force_ratio']:.4g})")
         print(line)
+    for name, splice in summary.get("splices", {}).items():
+        at = ", ".join(f"{c:.4g}" for c in splice["at"])
+        slip = (f", slip {splice['slip']:.4g} {summary['stiffness_unit'].split('/')[1]} at {splice['at_force']:.4g} {force}" if splice["slip"] is not None else "")
+        print(f"  splice {name} at ({at}) {length} in the {splice['on']}: {splice['stiffness']:.4g} "
+              f"{summary['stiffness_unit']}{slip}")
     print(f"  load cases: {', '.join(summary['cases'])}")
 
 

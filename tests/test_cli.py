@@ -165,3 +165,22 @@ def test_steel_deck_example_shows_the_code_demands():
     types = {(i["type"], i["present"]) for i in doc["irregularities"]}
     assert ("2", True) in types
     assert doc["drift"]["walls"] and doc["plan"]["design_basis"] == "LRFD"
+
+
+def test_wood_floor_example_shows_elf_fx_and_splices():
+    """The wood-floor example gives Fx by the ELF distribution (ASCE 7-16 Eqs. 12.8-11/12 with
+    k = 1 for T = 0.25 s: Cvx = 10·190 : 20·185 : 30·120 → level 2 Fx = 78·3700/9200 =
+    31.37 kip; ΣFi/Σwi at and above = (31.37 + 30.52)/305 = 0.2029, hand arithmetic) and
+    two chord splices whose slip the flexible span 2-3 shows: 2 · 16 ft · Δc/(2 · 44 ft)
+    with Δc = (M/d)/k, M = w·32²/8 (SDPWS-2015 Eq. 4.2-1, slip term)."""
+    plan = load_plan(Path(__file__).parents[1] / "examples" / "birch_lane_flats_level2.toml")
+    doc = analyze(plan, semirigid=False).to_json()
+    load = doc["plan"]["loads"]["E"]
+    assert load["fx"] == pytest.approx(78 * 3700 / 9200, abs=1e-4)
+    assert load["fx_distribution"]["story_force_ratio"] == pytest.approx((78 * 3700 + 78 * 3600) / 9200 / 305,
+                                                                         abs=1e-6)
+    w = load["force"]["y"] / 96  # kip/ft, uniform (area weight and line weights along the load's span)
+    slip = (w * 32**2 / 8 / 44) / (4 / 0.03)  # in, per splice at midspan of span 2-3
+    spans = {s["span"]: s for s in doc["assumptions"]["flexible"]["cases"]["E+y"]["span_deflections"]}
+    assert spans["2-3"]["splice_slip"] == pytest.approx(2 * 16 * slip / (2 * 44), rel=2e-3)
+    assert spans["1-2"]["splice_slip"] == 0.0
