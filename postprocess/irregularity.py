@@ -3,8 +3,10 @@ level shows: torsional (Types 1a / 1b, from the rigid and the semi-rigid displac
 re-entrant corner (Type 2, from the outline) and diaphragm discontinuity (Type 3, from the
 openings, and from the adjacent story's stiffness where the engineer states it).
 
-Detection and reporting only: the consequences (Ax, the 25 % increase) are described, not
-applied to any force. Thresholds and the SDC column live in :mod:`planshear.code.asce7_16`.
+This module detects and describes; :mod:`planshear.run` applies the two consequences that act
+on this level's forces (Ax of §12.8.4.3 on the ±ecc cases, the 25 % of §12.3.3.4 on collectors)
+and lists them in ``irregularity_consequences_applied``. Thresholds and the SDC column live
+in :mod:`planshear.code.asce7_16`.
 Everything is SI (m, m²); ``values`` keys say what each number is (see :data:`VALUE_KINDS`).
 """
 
