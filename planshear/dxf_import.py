@@ -255,11 +255,12 @@ def read_drawing(path: str | Path, layers: dict[str, str] | None = None, units: 
     for _, entity in open_outlines:
         skipped.append(f'layer "{layers["outline"]}": an open {entity.dxftype()} (handle {entity.dxf.handle}) is not '
                        "an outline; close it in CAD")
-    layer_names = sorted({layer.dxf.name for layer in doc.layers})
+    used_layers = Counter(e.dxf.get("layer", "0") for e in doc.modelspace())
+    layer_names = [f"{name} ({count})" for name, count in sorted(used_layers.items())] or ["none: it is empty"]
     if not outlines:
         why = (f"only open polylines ({len(open_outlines)}); close the outline polyline in CAD" if open_outlines
-               else f'no closed polyline; the drawing\'s layers are {", ".join(layer_names)}: draw the outline as a '
-                    f"closed polyline on that layer or name its layer with --layer outline=LAYER")
+               else f"no closed polyline; the drawing's layers with entities (count) are {', '.join(layer_names)}: "
+                    "draw the outline as a closed polyline on that layer or name its layer with --layer outline=LAYER")
         raise PlanError([f'{label}: layer "{layers["outline"]}" (outline) has {why}'])
     if len(outlines) > 1:
         handles = ", ".join(e.dxf.handle for _, e in outlines)
@@ -393,15 +394,16 @@ def _chord(segment: Segment, family: str, region: Polygon, tol: float) -> Segmen
     minx, miny, maxx, maxy = region.bounds
     reach = 2.0 * (maxx - minx + maxy - miny) + float(np.abs(a).max())
     hit = LineString([a - reach * d, a + reach * d]).intersection(region)
-    if hit.is_empty or hit.length <= tol:
-        return None
-    coords = np.asarray([c for g in getattr(hit, "geoms", [hit]) for c in g.coords])
-    # A line along an outline edge can come back shortened from GEOS (round-off on the
-    # boundary): outline corners on the line count too.
+    pieces = [g for g in getattr(hit, "geoms", [hit]) if not g.is_empty and g.length > 0]
+    coords = np.asarray([c for g in pieces for c in g.coords]).reshape(-1, 2)
+    # A line along an outline edge can come back shortened or empty from GEOS (round-off on
+    # the boundary): outline corners on the line count too.
     corners = np.asarray(region.exterior.coords)
     on_line = np.abs((corners - a) @ np.array([-d[1], d[0]])) <= tol
     t = (np.vstack([coords, corners[on_line]]) - a) @ d
-    return Segment(tuple(a + t.min() * d), tuple(a + t.max() * d))
+    if len(t) < 2 or t.max() - t.min() <= tol:
+        return None
+    return Segment(tuple(float(c) for c in a + t.min() * d), tuple(float(c) for c in a + t.max() * d))
 
 
 def _grid_lines(segments: list[Segment], texts, walls: list[Segment], tol: float, size: float, region: Polygon):
@@ -410,6 +412,7 @@ def _grid_lines(segments: list[Segment], texts, walls: list[Segment], tol: float
     notes: list[str] = []
     skipped: list[str] = []
     lines: list[tuple[str, tuple, Segment]] = []  # (family, key, the line's chord through the outline)
+    drawn_ends: list[list[tuple[float, float]]] = []
     for segment in segments:
         family = _family(segment, tol)
         key = _line_key(segment, family)
@@ -419,7 +422,8 @@ def _grid_lines(segments: list[Segment], texts, walls: list[Segment], tol: float
                            f"({_n(segment.end[0])}, {_n(segment.end[1])}) misses the outline")
         elif not any(f == family and _same_line(k, key, tol, size) for f, k, _ in lines):
             lines.append((family, key, chord))
-    labels = _nearest_labels([[s.start, s.end] for _, _, s in lines], texts, LABEL_REACH * size)
+            drawn_ends.append([segment.start, segment.end])  # labels sit at the drawn ends
+    labels = _nearest_labels(drawn_ends, texts, LABEL_REACH * size)
     used: set[str] = set()
     grid: list[GridSpec] = []
     unnamed = []
