@@ -161,6 +161,9 @@ def _print_check(summary: dict) -> None:
         if "seismic_weight" in load:
             cm = ", ".join(f"{c:.4g}" for c in load["center_of_mass"])
             line += f" weight {load['seismic_weight']:.5g} {force}, center of mass ({cm}) {length},"
+            for axis, own in load.get("by_direction", {}).items():  # only_across weights
+                at = ", ".join(f"{c:.4g}" for c in own["center_of_mass"])
+                line += f" [along {axis}: weight {own['seismic_weight']:.5g} {force} at ({at})]"
         line += " force " + ", ".join(f"{axis}: {f:.5g} {force}" for axis, f in load["force"].items())
         if load.get("fpx_equation"):
             values = ", ".join(f"Eq. {eq} {v:.5g}" for eq, v in load["fpx_values"].items())
