@@ -1,4 +1,4 @@
-"""Command line: ``planshear check | run | demo``.
+"""Command line: ``planshear check | run | demo | import``.
 
 Exit codes: 0 success, 2 bad input (the plan file), 1 internal error (including a case
 whose wall forces fail the equilibrium check: nothing is written then). Only this module
@@ -44,12 +44,40 @@ def _parser() -> argparse.ArgumentParser:
     demo.add_argument("--format", choices=("text", "json"), default="text")
     demo.add_argument("--quiet", action="store_true")
     demo.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
+    imp = sub.add_parser("import", help="read a plan drawing (DXF) and write a plan file with placeholders to fill in")
+    imp.add_argument("drawing", help="plan drawing (.dxf)")
+    imp.add_argument("--out", required=True, help="plan file to write (.toml); never replaced without --force")
+    imp.add_argument("--layer", action="append", default=[], metavar="ROLE=LAYER",
+                     help="layer of a role (outline, opening, zone, wall, grid); repeatable; defaults PS-OUTLINE, "
+                          "PS-OPENING, PS-ZONE, PS-WALL, PS-GRID")
+    imp.add_argument("--units", default=None, help="what one drawing unit is (in, ft, mm, cm, m); default: the "
+                                                   "drawing header's $INSUNITS")
+    imp.add_argument("--force", action="store_true", help="replace an existing --out file")
     return parser
+
+
+def _import(args) -> int:
+    """``planshear import``: the drawing read, what was skipped, the file written."""
+    from .dxf_import import import_drawing, parse_layer_options
+
+    report = import_drawing(args.drawing, args.out, parse_layer_options(args.layer), args.units, args.force)
+    d = report.drawing
+    print(f"read {d.source} ({d.units_note}; plan in {d.length_unit}): outline with {len(d.outline)} corners, "
+          f"{len(d.openings)} opening(s), {len(d.zones)} zone(s), {len(d.walls)} wall(s), {len(d.grid)} grid line(s)")
+    for line in d.skipped:
+        print(f"  skipped: {line}")
+    for line in d.notes:
+        print(f"  note: {line}")
+    print(f"wrote {report.out} with {report.placeholders} FILL-IN placeholder(s); fill them in "
+          f"(planshear check {report.out} lists them)")
+    return EXIT_OK
 
 
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
+        if args.command == "import":
+            return _import(args)
         if args.command == "check":
             plan = load_plan(args.plan)
             from .loads import expand_load_cases
@@ -133,6 +161,9 @@ def _print_check(summary: dict) -> None:
         if "seismic_weight" in load:
             cm = ", ".join(f"{c:.4g}" for c in load["center_of_mass"])
             line += f" weight {load['seismic_weight']:.5g} {force}, center of mass ({cm}) {length},"
+            for axis, own in load.get("by_direction", {}).items():  # only_across weights
+                at = ", ".join(f"{c:.4g}" for c in own["center_of_mass"])
+                line += f" [along {axis}: weight {own['seismic_weight']:.5g} {force} at ({at})]"
         line += " force " + ", ".join(f"{axis}: {f:.5g} {force}" for axis, f in load["force"].items())
         if load.get("fpx_equation"):
             values = ", ".join(f"Eq. {eq} {v:.5g}" for eq, v in load["fpx_values"].items())

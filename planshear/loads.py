@@ -131,9 +131,10 @@ class LoadCase:
         return self.sign * AXES[self.axis]
 
 
-def _weight_parts(plan: Plan, load: Load):
-    """Area weights (region, N/m²), line weights (start, end, N/m) and point weights
-    (x, y, N, footprint) of a seismic load."""
+def _weight_parts(plan: Plan, load: Load, axis: str | None = None):
+    """Area weights (region, N/m²), line weights (start, end, N/m; grid-line weights, then
+    perimeter weights) and point weights (x, y, N, footprint) of a seismic load; with
+    ``axis``, only the weights that act in a load along it (``only_across``)."""
     areas = []
     remainder = plan.region
     for zone in plan.zones:
@@ -143,19 +144,23 @@ def _weight_parts(plan: Plan, load: Load):
     if load.area_weight:
         areas.append((remainder, load.area_weight))
     lines = []
-    for line_name, t0, t1, q in load.line_weights:
-        grid_line = plan.line(line_name)
-        lines.append((grid_line.point(t0), grid_line.point(t1), q))
+    for index, (line_name, t0, t1, q) in enumerate(load.line_weights):
+        if axis is None or axis in load.weight_axes(index):
+            grid_line = plan.line(line_name)
+            lines.append((grid_line.point(t0), grid_line.point(t1), q))
+    lines += [(a, b, q) for a, b, q, axes in load.edge_weights if axis is None or axis in axes]
     points = [(x, y, p, footprint) for (x, y, p), footprint in zip(load.point_weights, load.point_footprints, strict=True)
               if p]
     return areas, lines, points
 
 
-def seismic_weight(plan: Plan, load: Load) -> SeismicWeight:
+def seismic_weight(plan: Plan, load: Load, axis: str | None = None) -> SeismicWeight:
     """Seismic weight (N) and center of mass (m) of ``load``: area weight over the
-    outline less openings (zone overrides replace it inside their zone) + line weights
-    + point weights, each over its footprint."""
-    areas, lines, points = _weight_parts(plan, load)
+    outline less openings (zone overrides replace it inside their zone) + line and
+    perimeter weights + point weights, each over its footprint. With ``axis`` ("x" or
+    "y"), the weight of a load along that axis: weights marked ``only_across`` count only
+    in the direction across their line or edge."""
+    areas, lines, points = _weight_parts(plan, load, axis)
     areas += [(footprint, p / footprint.area) for _, _, p, footprint in points]
     field = ForceField(np.zeros(2), tuple(areas), tuple(lines), ())
     total = field.total()
@@ -280,7 +285,7 @@ def _seismic_field(plan: Plan, load: Load, axis: str) -> ForceField:
     """The seismic weight as a force field along +axis (N per unit weight), with line
     weights across the load and point weights spread across the depth along their line of
     action (see :func:`spread_across_depth`)."""
-    areas, lines, points = _weight_parts(plan, load)
+    areas, lines, points = _weight_parts(plan, load, axis)
     spread, kept = _spread_lines(plan, lines, axis)
     s_index = 0 if axis == "y" else 1
     for x, y, p, footprint in points:
@@ -359,21 +364,19 @@ def expand_load_cases(plan: Plan, amplification: dict[tuple[str, str], float] | 
     accidental eccentricity of those cases."""
     cases: list[LoadCase] = []
     for load in plan.loads:
-        if load.kind == "seismic":
-            weight = seismic_weight(plan, load)
-            fpx = fpx_12_10_1_1(weight.total, *load.fpx) if load.fpx is not None else None
-            force = fpx.value if fpx is not None else float(load.total)
-            rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame, load.fx, load.sdc)
-            story_force = load.fx
-            base_total = weight.total
-            center = weight.center
-        else:
-            base_total, force, center = 0.0, 0.0, None
-            rule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
-            story_force = None
+        story_force = load.fx if load.kind == "seismic" else None
+        rule = CollectorRule(1.0, 1.0, None, "wind: no overstrength")
         combination = combination_factors_2_3_2_4(plan.design_basis, load.kind, load.rho)
         for axis in load.directions:
             if load.kind == "seismic":
+                # Weight, Fpx and collector rule per direction: weights marked only_across
+                # count only in the direction across their line (the same as two loads).
+                weight = seismic_weight(plan, load, axis)
+                fpx = fpx_12_10_1_1(weight.total, *load.fpx) if load.fpx is not None else None
+                force = fpx.value if fpx is not None else float(load.total)
+                rule = collector_rule_12_10_2_1(load.collector_overstrength, force, fpx, load.light_frame, load.fx,
+                                                load.sdc)
+                base_total, center = weight.total, weight.center
                 # A seismic field reverses exactly, so only +axis is analyzed.
                 fields = [(+1, _seismic_field(plan, load, axis).scaled(force / base_total), force, center)]
             else:

@@ -26,7 +26,7 @@ from shapely.geometry import LineString, Point, Polygon
 from .code import DEFAULT_EDITION, EDITIONS
 from .code.asce7_16 import SDCS, ElfDistribution, elf_distribution_12_8_3
 from .errors import PlanError, UnstablePlanError
-from .schema import schema_problems
+from .schema import placeholder_problems, schema_problems
 from .stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
 from .units import (
     AREA_LOAD,
@@ -200,6 +200,20 @@ class Load:
     rho: float = 1.0  # redundancy factor ρ (ASCE 7-16 §12.3.4) on the vertical elements' seismic load effect
     drift: tuple[float, float, float, float] | None = None  # (Cd, Ie, story height m, allowable Δa/hsx)
     sdc: str | None = None  # Seismic Design Category "A"…"F" (seismic loads), for Table 12.3-1
+    # Load axes ("x", "y") each line weight acts in, parallel to line_weights; () = all of them.
+    line_weight_axes: tuple[tuple[str, ...], ...] = ()
+    # Perimeter weight on outline edges: (start (2,), end (2,), N/m, load axes it acts in).
+    edge_weights: tuple[tuple[np.ndarray, np.ndarray, float, tuple[str, ...]], ...] = ()
+
+    def weight_axes(self, index: int) -> tuple[str, ...]:
+        """Load axes in which line weight ``index`` acts (both unless ``only_across``)."""
+        return self.line_weight_axes[index] if self.line_weight_axes else ("x", "y")
+
+    @property
+    def weight_depends_on_direction(self) -> bool:
+        """True when some weight acts in one load direction only (``only_across``)."""
+        axes = list(self.line_weight_axes) + [e[3] for e in self.edge_weights]
+        return any(set(a) != {"x", "y"} for a in axes)
 
 
 @dataclass(frozen=True)
@@ -312,7 +326,11 @@ def parse_plan(text: str, label: str = "plan.toml") -> Plan:
         document = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise PlanError([f"{label}: TOML syntax error: {exc}; fix the line it names"]) from None
-    problems = schema_problems(document, label)
+    problems = placeholder_problems(document, label)
+    if problems:
+        raise PlanError(problems)
+    document, problems = expand_wall_types(document, label)
+    problems += schema_problems(document, label)
     if problems:
         raise PlanError(problems)
     builder = _PlanBuilder(document, label)
@@ -884,7 +902,8 @@ class _PlanBuilder:
             if ecc is not None and ecc > 0.5:
                 self.problem(where + ".eccentricity", f"is a fraction of the plan dimension; {ecc} is more than half the plan; use e.g. 0.05")
                 ecc = None
-            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "total", "fpx", "light_frame",
+            seismic_keys = {"area_weight", "zone_area_weight", "line_weight", "point_weight", "perimeter_weight", "total",
+                            "fpx", "light_frame",
                             "drift", "sdc", "fx", "rho"}
             if kind == "edge":
                 misplaced = sorted(seismic_keys & set(entry))
@@ -928,7 +947,7 @@ class _PlanBuilder:
                 q = self.quantity(value, AREA_LOAD, f"{where}.zone_area_weight.{zone_name}", positive=False)
                 if q is not None:
                     zone_weights[zone_name] = q
-            line_weights = []
+            line_weights, line_axes = [], []
             for j, lw in enumerate(entry.get("line_weight", [])):
                 lw_where = f"{where}.line_weight #{j + 1}"
                 q = self.quantity(lw["weight"], LINE_LOAD, lw_where + ".weight", positive=False)
@@ -937,6 +956,8 @@ class _PlanBuilder:
                     continue
                 line, t0, t1 = located
                 line_weights.append((line.name, t0, t1, q))
+                line_axes.append(_across_axes(line.direction) if lw.get("only_across") else ("x", "y"))
+            edge_weights = self.perimeter_weights(entry.get("perimeter_weight", []), where + ".perimeter_weight", region)
             point_weights, footprints = [], []
             for j, pw in enumerate(entry.get("point_weight", [])):
                 pw_where = f"{where}.point_weight #{j + 1}"
@@ -992,9 +1013,17 @@ class _PlanBuilder:
                 continue
             if area_weight is None or ecc is None or omega is None or (has_total and total is None):
                 continue
-            if area_weight == 0 and not zone_weights and not line_weights and not point_weights:
+            if area_weight == 0 and not zone_weights and not line_weights and not point_weights and not edge_weights:
                 self.problem(where, 'has no seismic weight; give "area_weight" (e.g. "20 psf") and/or line and point weights')
                 continue
+            if area_weight == 0 and not zone_weights and not point_weights:
+                acting = [a for a in line_axes] + [e[3] for e in edge_weights]
+                empty = [d for d in directions if not any(d in a for a in acting)]
+                if empty:
+                    self.problem(where, f"has no seismic weight in the direction {', '.join(empty)}: its line and "
+                                 "perimeter weights are all only_across lines parallel to that direction; add an "
+                                 "area weight or drop that direction")
+                    continue
             loads.append(
                 Load(load_name, kind, directions, area_weight=area_weight, zone_area_weight=zone_weights,
                      line_weights=tuple(line_weights), point_weights=tuple(point_weights),
@@ -1002,7 +1031,9 @@ class _PlanBuilder:
                      eccentricity=ecc, collector_overstrength=omega, light_frame=bool(entry.get("light_frame", False)),
                      drift=self.drift_inputs(entry.get("drift"), where + ".drift", fpx), sdc=sdc,
                      fx=fx, fx_elf=elf, fpx_ratio_from_elf=has_fpx and "story_force_ratio" not in entry["fpx"],
-                     rho=self.rho(entry.get("rho", 1.0), where + ".rho"))
+                     rho=self.rho(entry.get("rho", 1.0), where + ".rho"),
+                     line_weight_axes=tuple(line_axes) if any(a != ("x", "y") for a in line_axes) else (),
+                     edge_weights=tuple(edge_weights))
             )
         if not raw:
             self.problem("load", 'no [[load]] given; add a seismic or edge load')
@@ -1059,6 +1090,39 @@ class _PlanBuilder:
         if "k" in raw and k is None:
             return None
         return elf_distribution_12_8_3(V, heights, weights, level - 1, period=period, k=k)
+
+    def perimeter_weights(self, raw: dict | list, where: str, region: Polygon) -> list[tuple]:
+        """``perimeter_weight``: a line weight (N/m along each edge's own length) on every
+        outline edge whose outward normal faces one of ``faces`` ("all", or some of "+x",
+        "-x", "+y", "-y"; a skewed edge faces both directions its normal has a component
+        in, re-entrant edges face where their normal points). With ``only_across`` an edge's
+        weight acts only in the load direction across the edge (skewed edges: both)."""
+        found: list[tuple] = []
+        entries = [raw] if isinstance(raw, dict) else list(raw)
+        ring = np.asarray(shapely.geometry.polygon.orient(Polygon(region.exterior), 1.0).exterior.coords)
+        starts, ends = ring[:-1], ring[1:]
+        edges = ends - starts
+        lengths = np.hypot(edges[:, 0], edges[:, 1])
+        normals = np.column_stack([edges[:, 1], -edges[:, 0]]) / lengths[:, None]  # outward: CCW ring
+        for j, entry in enumerate(entries):
+            here = f"{where} #{j + 1}" if len(entries) > 1 else where
+            q = self.quantity(entry["weight"], LINE_LOAD, here + ".weight", positive=False)
+            faces = entry.get("faces", "all")
+            faces = list(FACE_NORMALS) if faces == "all" else [faces] if isinstance(faces, str) else list(faces)
+            bad = [f for f in faces if f not in FACE_NORMALS]
+            if bad or len(set(faces)) != len(faces):
+                self.problem(here + ".faces", f'must be "all" or a list of some of "+x", "-x", "+y", "-y" (the '
+                             f"outward direction an edge faces) once each, got {entry.get('faces')!r}")
+                continue
+            if q is None:
+                continue
+            facing = np.zeros(len(edges), dtype=bool)
+            for face in faces:
+                facing |= normals @ FACE_NORMALS[face] > 1e-9
+            for a, b, n in zip(starts[facing], ends[facing], normals[facing], strict=True):
+                axes = _across_axes(np.array([-n[1], n[0]])) if entry.get("only_across") else ("x", "y")
+                found.append((a.copy(), b.copy(), q, axes))
+        return found
 
     def mesh_settings(self, raw: dict, size: float) -> MeshSettings:
         element = raw.get("element", "triangle")
@@ -1146,6 +1210,70 @@ class _PlanBuilder:
             adjacent = None
         return ClassificationFlags(bool(raw.get("idealized_flexible", False)), bool(raw.get("idealized_rigid", False)), factors,
                                    float(adjacent) if adjacent is not None else None)
+
+
+#: Outward normals named by the ``faces`` of a perimeter weight.
+FACE_NORMALS = {"+x": np.array([1.0, 0.0]), "-x": np.array([-1.0, 0.0]), "+y": np.array([0.0, 1.0]),
+                "-y": np.array([0.0, -1.0])}
+
+
+def _across_axes(direction: np.ndarray) -> tuple[str, ...]:
+    """Load axes across a line or edge running along unit vector ``direction``: "x" for
+    one parallel to y, "y" for one parallel to x, both for a skewed one (its weight is
+    partly out of its plane in either direction; counted whole in both, the larger share)."""
+    if abs(direction[0]) <= 1e-9:
+        return ("x",)
+    if abs(direction[1]) <= 1e-9:
+        return ("y",)
+    return ("x", "y")
+
+
+def expand_wall_types(document: dict, label: str) -> tuple[dict, list[str]]:
+    """Merge ``[wall_type.NAME]`` into the walls that say ``type = "NAME"``: the type's
+    stiffness form is the wall's unless the wall gives its own; a wall giving the same
+    ``pier`` or ``wood`` form overrides only the fields it writes. Returns the document with
+    merged walls (``type`` removed) and the problems found (an unknown type lists the
+    defined ones). Runs before the schema so the merged walls are checked as any wall."""
+    types = document.get("wall_type")
+    walls = document.get("wall")
+    if not isinstance(types, dict) and not (isinstance(walls, list) and any(
+            isinstance(w, dict) and "type" in w for w in walls)):
+        return document, []
+    types = types if isinstance(types, dict) else {}
+    problems: list[str] = []
+    forms = ("stiffness", "pier", "wood")
+    for name, spec in types.items():
+        given = [k for k in forms if isinstance(spec, dict) and k in spec]
+        if isinstance(spec, dict) and len(given) != 1:
+            problems.append(f'{label}: wall_type "{name}": give exactly one of "stiffness", "pier" or "wood"'
+                            + (f" (found {', '.join(given)})" if given else ""))
+    if not isinstance(walls, list):
+        return document, problems
+    merged_walls = []
+    for i, wall in enumerate(walls):
+        if not isinstance(wall, dict) or "type" not in wall:
+            merged_walls.append(wall)
+            continue
+        wall = dict(wall)
+        type_name = wall.pop("type")
+        where = f'wall "{wall["id"]}"' if isinstance(wall.get("id"), str) else f"wall #{i + 1}"
+        spec = types.get(type_name) if isinstance(type_name, str) else None
+        if not isinstance(spec, dict):
+            defined = ", ".join(f'"{t}"' for t in types) or "none ([wall_type.NAME] tables)"
+            close = difflib.get_close_matches(str(type_name), list(types), n=1)
+            problems.append(f'{label}: {where}.type: "{type_name}" is not a defined wall type (defined: {defined})'
+                            + (f'; did you mean "{close[0]}"?' if close else "; define it or fix the name"))
+            merged_walls.append(wall)
+            continue
+        own = [k for k in forms if k in wall]
+        if not own:
+            for key in forms:
+                if key in spec:
+                    wall[key] = dict(spec[key]) if isinstance(spec[key], dict) else spec[key]
+        elif len(own) == 1 and own[0] in spec and isinstance(spec[own[0]], dict) and isinstance(wall[own[0]], dict):
+            wall[own[0]] = spec[own[0]] | wall[own[0]]  # the wall's fields win
+        merged_walls.append(wall)
+    return document | {"wall": merged_walls}, problems
 
 
 #: Bytes of memory per degree of freedom assumed for assembly + sparse factorization

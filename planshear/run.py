@@ -432,7 +432,19 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
     for load in plan.loads:
         entry: dict = {"kind": load.kind, "directions": list(load.directions)}
         if load.kind == "seismic":
-            weight = seismic_weight(plan, load)
+            weight = seismic_weight(plan, load, load.directions[0])
+            if load.weight_depends_on_direction:  # only_across weights: weight, center, Fpx per direction
+                entry["by_direction"] = {}
+                for axis in load.directions:
+                    own = seismic_weight(plan, load, axis)
+                    entry["by_direction"][axis] = {
+                        "seismic_weight": round(units.force_out(own.total), 6),
+                        "center_of_mass": [round(units.length_out(c), 6) for c in own.center]}
+                    if load.fpx is not None:
+                        entry["by_direction"][axis]["fpx_equation"] = fpx_12_10_1_1(own.total, *load.fpx).governing
+                entry["seismic_weight_note"] = (f"weights marked only_across act in one direction; seismic_weight, "
+                                                f"center_of_mass and fpx_values are those of a load along "
+                                                f"{load.directions[0]} (see by_direction)")
             entry["seismic_weight"] = round(units.force_out(weight.total), 6)
             entry["center_of_mass"] = [round(units.length_out(c), 6) for c in weight.center]
             if load.fpx is not None:

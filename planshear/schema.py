@@ -11,7 +11,11 @@ import difflib
 
 import jsonschema
 
-__all__ = ["PLAN_SCHEMA", "schema_problems"]
+__all__ = ["PLAN_SCHEMA", "PLACEHOLDER", "schema_problems", "placeholder_problems"]
+
+#: Start of a value that ``planshear import`` could not read from the drawing; the text after
+#: it says what to write. A plan holding one is refused (see :func:`placeholder_problems`).
+PLACEHOLDER = "FILL-IN:"
 
 QUANTITY: dict = {"description": "string with a unit"}
 NUMBER = {"type": "number"}
@@ -35,6 +39,33 @@ MATERIAL = {
         "axial_ratio": NUMBER,
         "en": QUANTITY,
         "at_unit_shear": QUANTITY,
+    },
+    "additionalProperties": False,
+}
+
+#: A ``[wall_type.NAME]``: one wall-stiffness form, possibly partial (the walls that use the
+#: type may add or override fields; the merged wall is checked as any wall).
+WALL_TYPE = {
+    "type": "object",
+    "properties": {
+        "stiffness": QUANTITY,
+        "pier": {"type": "object", "properties": {k: QUANTITY for k in ("E", "G", "thickness", "height")}
+                 | {"top": {"type": "string"}}, "additionalProperties": False},
+        "wood": {"type": "object", "properties": {k: QUANTITY for k in ("Ga", "height", "chord_EA", "holdown_k")},
+                 "additionalProperties": False},
+    },
+    "additionalProperties": False,
+}
+
+#: ``perimeter_weight`` of a seismic load: a line weight on the outline edges facing the
+#: given directions ("all", or some of "+x", "-x", "+y", "-y" by outward normal).
+PERIMETER_WEIGHT = {
+    "type": "object",
+    "required": ["weight"],
+    "properties": {
+        "weight": QUANTITY,
+        "faces": {"type": ["string", "array"], "items": {"type": "string"}, "minItems": 1},
+        "only_across": {"type": "boolean"},
     },
     "additionalProperties": False,
 }
@@ -105,6 +136,7 @@ PLAN_SCHEMA: dict = {
                 "properties": {
                     "id": {"type": "string"},
                     "line": {"type": "string"},
+                    "type": {"type": "string"},
                     "from": NUMBER,
                     "to": NUMBER,
                     "stiffness": QUANTITY,
@@ -172,6 +204,7 @@ PLAN_SCHEMA: dict = {
                                 "weight": QUANTITY,
                                 "from": NUMBER,
                                 "to": NUMBER,
+                                "only_across": {"type": "boolean"},
                             },
                             "additionalProperties": False,
                         },
@@ -189,6 +222,8 @@ PLAN_SCHEMA: dict = {
                             "additionalProperties": False,
                         },
                     },
+                    # one table, or a list of them (JSON Schema applies "items" to lists only)
+                    "perimeter_weight": PERIMETER_WEIGHT | {"type": ["object", "array"], "items": PERIMETER_WEIGHT},
                     "total": QUANTITY,
                     "fpx": {
                         "type": "object",
@@ -232,6 +267,7 @@ PLAN_SCHEMA: dict = {
                 "additionalProperties": False,
             },
         },
+        "wall_type": {"type": "object", "additionalProperties": WALL_TYPE},
         "transfer": {
             "type": "array",
             "items": {
@@ -375,4 +411,26 @@ def schema_problems(document: dict, file_label: str) -> list[str]:
             )
         else:
             problems.append(f"{file_label}: {where}: {error.message}")
+    return problems
+
+
+def placeholder_problems(document: dict, file_label: str) -> list[str]:
+    """One message per value still holding a ``FILL-IN:`` placeholder (left by ``planshear
+    import`` where the drawing does not say), naming where it is and what to write there."""
+    problems: list[str] = []
+
+    def walk(node: object, path: list) -> None:
+        if isinstance(node, str) and node.strip().upper().startswith(PLACEHOLDER):
+            where = _item_label(document, path)
+            hint = node.strip()[len(PLACEHOLDER):].strip()
+            problems.append(f"{file_label}: {where}: not filled in yet (placeholder left by planshear import); "
+                            f"replace the placeholder: {hint}")
+        elif isinstance(node, dict):
+            for key, child in node.items():
+                walk(child, [*path, key])
+        elif isinstance(node, list):
+            for index, child in enumerate(node):
+                walk(child, [*path, index])
+
+    walk(document, [])
     return problems
