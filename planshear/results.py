@@ -19,6 +19,7 @@ __all__ = [
     "classification_to_json",
     "irregularity_to_json",
     "envelope_to_json",
+    "members_to_json",
     "comparison_to_json",
 ]
 
@@ -370,14 +371,54 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
     for name, text in envelope.cautions.items():
         collectors.setdefault(name, {})["caution"] = text
         lines.setdefault(name, {})["caution"] = text
+    members = members_to_json(envelope, units)
+    chords = table(envelope.chords)
+    for name, item in members.items():
+        for key in item["chord"]["sources"]:
+            if key in chords:
+                chords[key]["member"] = name
+        if item["collector"]["source"] in collectors:
+            collectors[item["collector"]["source"]]["member"] = name
     return {
         "allowed_assumptions": {axis: list(names) for axis, names in envelope.allowed.items()},
         "walls": table(envelope.walls),
         "lines": lines,
         "line_reactions": table(envelope.line_reactions),
         "collectors": collectors,
-        "chords": table(envelope.chords),
+        "chords": chords,
+        "members": members,
     }
+
+
+def members_to_json(envelope, units: OutputUnits) -> dict:
+    """Chords and collectors by member (grid line and bay), both roles, in output units:
+    ``chord`` (tension, compression; sources: the outline edges or declared chords, and
+    "across": the bar under load across it in the semi-rigid model), ``collector`` (tension,
+    compression without and with ASCE 7-16 §12.10.2.1), and the member's ``design`` value
+    with the role that governs it."""
+    from .postprocess.envelope import member_envelopes  # postprocess imports this module
+
+    out = {}
+    for name, m in member_envelopes(envelope).items():
+        (tension, t_role), (compression, c_role), (design, role) = m.tension, m.compression, m.design
+        member = m.member
+        out[name] = {
+            "line": member.line,
+            "from": None if not np.isfinite(member.start[0]) else [_r(units.length_out(v)) for v in member.start],
+            "to": None if not np.isfinite(member.end[0]) else [_r(units.length_out(v)) for v in member.end],
+            "chord": {"sources": list(member.chords), "bays": member.chord_bays,
+                      "tension": _governing(m.chord_tension, units),
+                      "compression": _governing(m.chord_compression, units)},
+            "collector": {"source": member.collector,
+                          "tension": _governing(m.collector_tension, units),
+                          "compression": _governing(m.collector_compression, units),
+                          "tension_with_overstrength": _governing(m.collector_tension_omega, units),
+                          "compression_with_overstrength": _governing(m.collector_compression_omega, units)},
+            "tension": None if tension is None else {**_governing(tension, units), "role": t_role},
+            "compression": None if compression is None else {**_governing(compression, units), "role": c_role},
+            "design": {**_governing(design, units), "role": role},
+        }
+    return out
 
 
 def comparison_to_json(table: dict, units: OutputUnits) -> dict:

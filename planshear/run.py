@@ -25,6 +25,7 @@ from .postprocess.envelope import (
     Envelope,
     build_envelope,
     compare_walls,
+    member_layout,
     with_irregularity_increase,
 )
 from .postprocess.irregularity import Irregularity, detect_irregularities
@@ -199,13 +200,14 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     enveloped = dict(methods)
     for factor, method in sensitivity.items():
         enveloped[f"semirigid@{factor:g}"] = method
-    envelope = build_envelope(enveloped, cases, classification)
+    layout = member_layout(plan)
+    envelope = build_envelope(enveloped, cases, classification, layout=layout)
     struts = strut_cautions(plan, methods)
     if struts:
         envelope = replace(envelope, cautions={**envelope.cautions, **struts})
     engineer = None
     if plan.design_envelope:
-        engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
+        engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope, layout=layout)
     drift = tuple(drift_checks(plan, methods, cases, run))
     # ASCE 7-16 §12.3.3.4: SDC D–F with a Type 1a, 1b, 2 or 3 irregularity present.
     triggering = [i for i in irregularities if i.present and i.applies and any("12.3.3.4" in s for s in i.sections)]
