@@ -20,6 +20,7 @@ __all__ = [
     "irregularity_to_json",
     "envelope_to_json",
     "members_to_json",
+    "checks_to_json",
     "comparison_to_json",
 ]
 
@@ -187,6 +188,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             ]
         elif key == "transfer":
             out[key] = [transfer_to_json(td, units) for td in value]
+        elif key == "span_unit_shear":
+            continue  # V/ℓ along the spans, kept for the design checks (checks.csv, results.json "checks")
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:
@@ -459,3 +462,34 @@ def irregularity_to_json(item, units: OutputUnits) -> dict:
         if getattr(item, key) is not None:
             out[key] = getattr(item, key)
     return out
+
+
+def checks_to_json(checks, units: OutputUnits) -> dict | None:
+    """Design checks (a :class:`planshear.postprocess.checks.DesignChecks`), failures first:
+    demand and capacity in force or unit-shear units, D/C, status, governing case."""
+    if checks is None:
+        return None
+
+    def out(value: float | None, quantity: str) -> float | None:
+        if value is None:
+            return None
+        return _r(units.line_force_out(value) if quantity == "unit shear" else units.force_out(value))
+
+    items = []
+    for c in checks.checks:
+        g = c.governing
+        items.append({
+            "kind": c.kind, "item": c.item, "quantity": c.quantity,
+            "unit": units.line_force if c.quantity == "unit shear" else units.force,
+            "demand": out(c.demand, c.quantity), "capacity": out(c.capacity, c.quantity),
+            "ratio": None if c.ratio is None else _r(c.ratio, 4), "status": c.status,
+            "assumption": None if g is None else g.assumption, "case": None if g is None else g.case,
+            "combination_factor": None if g is None else _r(g.factor, 4),
+            **({"note": c.note} if c.note else {}),
+        })
+    return {
+        "basis": checks.basis or "unfactored (no [design] basis)",
+        "rule": "D/C = design demand / capacity on the design basis; above 1 fails",
+        "failures": len(checks.failures),
+        "items": items,
+    }

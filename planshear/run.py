@@ -19,6 +19,7 @@ from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
+from .postprocess.checks import DesignChecks, design_checks
 from .postprocess.classify import Classification, classify
 from .postprocess.drift import DriftCheck, drift_checks
 from .postprocess.envelope import (
@@ -32,6 +33,7 @@ from .postprocess.irregularity import Irregularity, detect_irregularities
 from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
+    checks_to_json,
     classification_to_json,
     comparison_to_json,
     envelope_to_json,
@@ -68,6 +70,7 @@ class Results:
     drift: tuple[DriftCheck, ...] = ()  # ASCE 7-16 §12.8.6 / §12.12.1, loads with drift inputs
     applied_consequences: tuple[str, ...] = ()  # irregularity consequences applied to the forces
     irregularities: tuple[Irregularity, ...] = ()  # ASCE 7-16 Table 12.3-1 checks
+    checks: DesignChecks | None = None  # demand/capacity where the plan gives capacities
 
     @property
     def units(self) -> OutputUnits:
@@ -102,6 +105,7 @@ class Results:
             },
             "comparison": comparison_to_json(compare_walls(self.methods), units),
             "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
+            "checks": checks_to_json(self.checks, units),
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "
                          "(with the accidental torsion for rigid and semi-rigid); relative to F and F × plan size",
@@ -223,8 +227,10 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     applied += tuple(f"§12.8.4.3: accidental eccentricity of load {load} along {axis} × Ax = {ax:.3f} (torsional "
                      "irregularity; all ±ecc cases of the rigid and semi-rigid assumptions)"
                      for (load, axis), ax in sorted(amplification.items()))
+    checks = design_checks(plan, methods, cases, envelope, run)
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
-                   engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied)
+                   engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied,
+                   checks=checks)
 
 
 def _torsional_amplification(irregularities) -> dict[tuple[str, str], float]:
