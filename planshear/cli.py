@@ -155,11 +155,32 @@ def _short_json(results: Results) -> dict:
     return short
 
 
+def _print_checks(doc: dict) -> None:
+    """Design checks, failures first (only when the plan gives capacities)."""
+    checks = doc.get("checks")
+    if not checks:
+        return
+    failures = checks["failures"]
+    print(f"\ndesign checks ({checks['basis']}; D/C = demand / capacity): "
+          + (f"{failures} FAIL" if failures else "all checks with a capacity pass"))
+    for c in checks["items"]:
+        if c["status"] == "no capacity":
+            continue
+        unit = c["unit"]
+        mark = "FAILS" if c["status"] == "fails" else "ok"
+        print(f"  {mark:5} D/C {c['ratio']:6.2f}  {c['item']} {c['quantity']}: {c['demand']:.2f} of "
+              f"{c['capacity']:.2f} {unit}  ({c['assumption']} {c['case']})")
+    missing = sorted({c["item"] for c in checks["items"] if c["status"] == "no capacity"})
+    if missing:
+        print(f"  no capacity given: {', '.join(missing)}")
+
+
 def _print_results(results: Results, out: Path) -> None:
     doc = results.to_json()
     units = doc["units"]
     force = units["force"]
     print(f"plan: {doc['plan']['name']}")
+    _print_checks(doc)
     for assumption, reason in doc["unavailable"].items():
         print(f"\n{assumption}: not run — {reason}")
     classification = doc.get("classification")

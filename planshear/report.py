@@ -338,8 +338,70 @@ def transfer_tables(doc: dict, cases: set[str] | None = None) -> dict[str, tuple
     }
 
 
+#: Decimals of each output unit in envelope.csv and checks.csv: what the unit justifies
+#: (0.01 kip ≈ 44 N, 0.001 kip/ft = 1 plf, 0.01 ft ≈ 3 mm; kN, kN/m and m alike).
+DECIMALS = {"kip": 2, "kN": 2, "kip/ft": 3, "kN/m": 2, "ft": 2, "m": 3, "in": 3, "mm": 1, "ratio": 3}
+
+
+def _rounded(value, unit: str):
+    """``value`` rounded to :data:`DECIMALS` of ``unit``; blank when missing."""
+    if value is None:
+        return ""
+    return round(float(value), DECIMALS[unit])
+
+
+def envelope_table(doc: dict) -> tuple[list[str], list[list]]:
+    """envelope.csv: every wall, line reaction and member (chord and collector roles once per
+    member) with its design value, governing assumption, case and role, with and without Ω0,
+    and the load-combination factor; forces rounded per :data:`DECIMALS`."""
+    f = doc["units"]["force"]
+    envelope = doc.get("envelope") or {}
+    headers = ["kind", "name", "value", f"design [{f}]", "governing role", "assumption", "case",
+               "combination factor [-]", f"chord role [{f}]", f"collector role without Ω0 [{f}]",
+               f"collector role with Ω0 (ASCE 7-16 §12.10.2.1) [{f}]", "chord on", "source keys"]
+    rows = []
+
+    def row(kind, name, value, g, role="", chord=None, collector=None, omega=None, chord_on="", keys=""):
+        rows.append([kind, name, value, _rounded(g and g["value"], f), role, g["assumption"] if g else "",
+                     g["case"] if g else "", _rounded(g.get("combination_factor", 1.0) if g else None, "ratio"),
+                     _rounded(chord and chord["value"], f), _rounded(collector and collector["value"], f),
+                     _rounded(omega and omega["value"], f), chord_on, keys])
+
+    for wall, slots in envelope.get("walls", {}).items():
+        if slots.get("design"):
+            row("wall", wall, "force along the wall", slots["design"])
+    for line, slots in envelope.get("line_reactions", {}).items():
+        if slots.get("design"):
+            row("line", line, "reaction (sum of its walls)", slots["design"])
+    for name, m in envelope.get("members", {}).items():
+        keys = " ".join(k for k in [m["collector"]["source"] or "", *m["chord"]["sources"]] if k)
+        for value in ("tension", "compression"):
+            g = m.get(value)
+            if g:
+                row("member", name, value, g, g["role"], m["chord"][value], m["collector"][value],
+                    m["collector"][f"{value}_with_overstrength"], m["chord"]["bays"] or "", keys)
+    return headers, rows
+
+
+def checks_table(doc: dict) -> tuple[list[str], list[list]]:
+    """checks.csv: every design check, failures first (results.json "checks")."""
+    units = doc["units"]
+    f, v = units["force"], units["unit_shear"]
+    headers = ["kind", "item", "quantity", f"demand [{f}]", f"capacity [{f}]", f"demand [{v}]", f"capacity [{v}]",
+               "D/C [-]", "status", "assumption", "case", "combination factor [-]", "note"]
+    rows = []
+    for c in (doc.get("checks") or {}).get("items", []):
+        shear = c["quantity"] == "unit shear"
+        pair = [_rounded(c["demand"], v if shear else f), _rounded(c["capacity"], v if shear else f)]
+        rows.append([c["kind"], c["item"], c["quantity"], *(["", ""] + pair if shear else pair + ["", ""]),
+                     _rounded(c["ratio"], "ratio"), c["status"], c["assumption"] or "", c["case"] or "",
+                     _rounded(c["combination_factor"], "ratio"), c.get("note", "")])
+    return headers, rows
+
+
 def write_tables(folder: Path, doc: dict) -> list[str]:
-    """walls.csv, lines.csv, chords.csv and classification.csv with units in the headers."""
+    """walls.csv, lines.csv, chords.csv, classification.csv, envelope.csv and (with
+    capacities) checks.csv with units in the headers."""
     units = doc["units"]
     f, p, d, v = units["force"], units["position"], units["displacement"], units["unit_shear"]
     written = []
@@ -378,6 +440,9 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
     write("classification.csv", ["direction", "case", "span", f"MDD [{d}]", f"ADVE [{d}]", "ratio [-]",
                                  "flexible", "behaviour", "verdict", "MDD_x", "MDD_y", f"MDD_local [{d}]",
                                  "MDD_local_x", "MDD_local_y"], rows)
+    write("envelope.csv", *envelope_table(doc))
+    if doc.get("checks"):
+        write("checks.csv", *checks_table(doc))
     return written
 
 
@@ -548,8 +613,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
             + [""] + [line for text in LIMITATIONS_TEXT for line in _wrap(f"- {text}", 110)]
             + [""] + _wrap(CAUTION, 110),
         )])
+        checks_html = _design_checks_section(doc, results, folder, pdf)
     written.append("report.pdf")
-    (folder / "report.html").write_text(_html(doc, tables, figures), encoding="utf-8")
+    (folder / "report.html").write_text(_html(doc, tables, figures, checks_html), encoding="utf-8")
     written.append("report.html")
     return written
 
@@ -581,7 +647,35 @@ def _wrap(text: str, width: int) -> list[str]:
     return textwrap.wrap(text, width) or [""]
 
 
-def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
+def _design_checks_section(doc: dict, results, folder: Path, pdf: PdfPages) -> str:
+    """"Design checks" (failures first) and the chords and collectors by member: PDF pages
+    (table, then the D/C map) and the HTML section; empty HTML without capacities for the
+    checks part."""
+    from .figures_checks import dc_map_figure
+
+    members = envelope_table(doc)
+    members = (members[0], [r for r in members[1] if r[0] == "member"])
+    intro = ("Each member once, by grid line and bay, with both roles: chord (load across it) and collector (load "
+             "along it; with Ω0 per ASCE 7-16 §12.10.2.1 where the case requires it); the design value is the larger.")
+    sections = [("Chords and collectors by member", _wrap(intro, 110) + _plain_rows(*members))]
+    body = f"<section><h2>Chords and collectors by member</h2><p>{_esc(intro)}</p>{_table(*members, 'members')}</section>"
+    if not doc.get("checks"):
+        _text_pages(pdf, sections)
+        return body
+    checks = checks_table(doc)
+    failures = doc["checks"]["failures"]
+    lead = (f"Basis: {doc['checks']['basis']}. {doc['checks']['rule']}. "
+            + (f"{failures} check(s) FAIL (listed first)." if failures else "Every check with a capacity passes."))
+    sections.insert(0, ("Design checks", _wrap(lead, 110) + _plain_rows(*checks)))
+    _text_pages(pdf, sections)
+    fig = dc_map_figure(results.plan, results.checks)
+    figure = save(fig, folder / "figures", "dc_map", "Demand/capacity map")
+    pdf.savefig(fig)
+    return (f"<section><h2>Design checks</h2><p>{_esc(lead)}</p>{_table(*checks, 'checks')}"
+            f"<figure>{figure.svg}<figcaption>{_esc(figure.title)}</figcaption></figure></section>" + body)
+
+
+def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]], checks_html: str = "") -> str:
     def section(title: str, body: str) -> str:
         return f"<section><h2>{_esc(title)}</h2>{body}</section>"
 
@@ -617,6 +711,7 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
                 f"{_num(plan[area_key])} {_esc(area_key[5:])}; material: {_esc(plan['material'])}. "
                 f"Load cases: {_esc(', '.join(plan['cases']))}. planshear {__version__}.</p>"),
         section("Assumptions not run", f"<ul>{not_run}</ul>") if not_run else "",
+        checks_html,
         section("Plan drawing", figs(figures["plan"])),
         section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
         section("Loads and load cases", tab("loads") + tab("cases")),

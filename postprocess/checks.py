@@ -208,7 +208,7 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
         item = "diaphragm outside the zones" if zone == MAIN else f"zone {zone}"
         checks.append(Check("zone", item, "unit shear", 0.0 if governing is None else governing.value,
                             zone_caps.get(zone), governing,
-                            "flexible/rigid: V/ℓ of the span; semi-rigid: N_xy averaged along each section in the zone"))
+                            "flexible/rigid: V / cut length along the span; semi-rigid: N_xy averaged along each section in the zone"))
         places[item] = regions[zone]
     by_id = {w.id: w for w in plan.walls}
     for wall_id, slots in envelope.walls.items():
