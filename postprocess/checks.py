@@ -103,17 +103,22 @@ def _s_intervals(region, s_index: int) -> list[tuple[float, float]]:
 
 
 def _idealized_zone_shear(result, region) -> tuple[float, float]:
-    """(largest |V/ℓ| (N/m) at stations whose section crosses the region, its station)."""
+    """(largest |V/ℓ| (N/m) at stations whose section crosses the region, its station). The
+    diagram is also read at the region's own ends (interpolated just inside them: the
+    stations of the analogy need not fall on a zone boundary)."""
     best, at = 0.0, float("nan")
     for axis, stations, v in result.extra.get("span_unit_shear", ()):
         s_index = 1 if axis == "x" else 0
-        inside = np.zeros(len(stations), bool)
+        # Just inside an end: past the ±1e-7·size stations that show a jump at a support.
+        inset = 2e-7 * float(np.ptp(stations))
         for lo, hi in _s_intervals(region, s_index):
-            inside |= (stations > lo) & (stations < hi)
-        if np.any(inside):
-            k = int(np.argmax(np.where(inside, np.abs(v), -1.0)))
-            if abs(v[k]) > best:
-                best, at = float(abs(v[k])), float(stations[k])
+            inside = (stations > lo) & (stations < hi)
+            ends = np.array([lo + inset, hi - inset])
+            s_all = np.concatenate([stations[inside], ends])
+            v_all = np.concatenate([v[inside], np.interp(ends, stations, v)])
+            k = int(np.argmax(np.abs(v_all)))
+            if abs(v_all[k]) > best:
+                best, at = float(abs(v_all[k])), float(s_all[k])
     return best, at
 
 
@@ -124,16 +129,20 @@ def zone_unit_shear(plan: Plan, mesh, membrane: np.ndarray, axes: list[str], reg
 
     ``membrane`` (n_e, 3, n_cases) are the element-centroid membrane forces; ``axes`` the load
     axis of each case (sections across the span: y = s for load along x, x = s for load along y);
-    stations every ``spacing`` (m) strictly inside the region's span range, so that a section
-    along a zone boundary is not counted."""
+    stations every half ``spacing`` (m) and just inside both ends of the region's span range
+    (a section along a zone boundary itself is not counted)."""
     cells = cells if cells is not None else element_polygons(mesh)
     out = np.zeros(membrane.shape[2])
     fractions = (np.arange(SAMPLES_IN_ZONE) + 0.5) / SAMPLES_IN_ZONE
     for axis in sorted(set(axes)):
         s_index = 1 if axis == "x" else 0
         columns = np.flatnonzero(np.asarray(axes) == axis)
+        # Every half mesh size, and just inside each end: the elements along a support are
+        # where the unit shear of a span is largest.
         stations = np.concatenate([
-            np.linspace(lo, hi, max(2, int(np.ceil((hi - lo) / spacing)) + 1) + 2)[1:-1]
+            np.concatenate([[lo + 1e-6 * (hi - lo)],
+                            np.linspace(lo, hi, int(np.ceil(2 * (hi - lo) / spacing)) + 1)[1:-1],
+                            [hi - 1e-6 * (hi - lo)]])
             for lo, hi in _s_intervals(region, s_index)
         ])
         x0, y0, x1, y1 = region.bounds
