@@ -229,11 +229,12 @@ def _print_results(results: Results, out: Path) -> None:
                   + ("   (!) no collector bar in the model" if "caution" in slots else ""))
         elif "caution" in slots:  # e.g. a transfer strut that only the idealized methods have
             print(f"  {name}: (!) {slots['caution']}")
-    print(f"\nchord peaks ({force}, tension +)")
+    print(f"\nchord peaks ({force}, tension +; load across the member)")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
-            print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
+            label = slots.get("member", name)
+            print(f"  {label.ljust(14)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     _print_walls_along_chords(doc)
     drift = doc.get("drift")
     if drift:

@@ -250,8 +250,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
          if slots.get("design")],
     )
     tables["chords"] = (
-        ["edge", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
-        [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
+        ["member (outline edge)", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
+        [[f"{s['member']} ({n})" if "member" in s else n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["information"] and s["information"]["value"]] for n, s in envelope["chords"].items()],
     )
     rows, line_rows = [], []
@@ -489,7 +489,9 @@ def _figures(doc: dict, results, folder: Path, pdf: PdfPages) -> dict[str, list[
             if not any(doc["assumptions"][a]["cases"].get(case_name, {}).get("chords", {}).get(edge, {}).get("diagram")
                        for a in assumptions):
                 continue
-            keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}", f"Chord force, {edge}, load along {axis}")
+            member = ((doc.get("envelope") or {}).get("chords", {}).get(edge) or {}).get("member", edge)
+            keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}",
+                 f"Chord force, {member} (outline {edge}), load along {axis}")
     if results.semirigid is not None:
         solution = results.semirigid.solution
         membrane = results.semirigid.membrane
