@@ -156,7 +156,12 @@ def _short_json(results: Results) -> dict:
 
 
 def _print_checks(doc: dict) -> None:
-    """Design checks, failures first (only when the plan gives capacities)."""
+    """Design checks, failures first (only when the plan gives capacities), and splice forces."""
+    force = doc["units"]["force"]
+    for splice in doc.get("splice_forces", []):
+        cells = [f"{key} {splice[key]['value']:.2f} {force} ({splice[key]['assumption']} {splice[key]['case']})"
+                 for key in ("tension", "compression") if splice.get(key)]
+        print(f"splice {splice['name']} in {splice['member'] or 'no member'}: " + ("; ".join(cells) or "no force"))
     checks = doc.get("checks")
     if not checks:
         return

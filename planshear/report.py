@@ -351,8 +351,8 @@ def _rounded(value, unit: str):
 
 
 def envelope_table(doc: dict) -> tuple[list[str], list[list]]:
-    """envelope.csv: every wall, line reaction and member (chord and collector roles once per
-    member) with its design value, governing assumption, case and role, with and without Ω0,
+    """envelope.csv: every wall, line reaction, member (chord and collector roles once per
+    member) and splice (its position under "source keys") with its design value, governing assumption, case and role, with and without Ω0,
     and the load-combination factor; forces rounded per :data:`DECIMALS`."""
     f = doc["units"]["force"]
     envelope = doc.get("envelope") or {}
@@ -380,6 +380,11 @@ def envelope_table(doc: dict) -> tuple[list[str], list[list]]:
             if g:
                 row("member", name, value, g, g["role"], m["chord"][value], m["collector"][value],
                     m["collector"][f"{value}_with_overstrength"], m["chord"]["bays"] or "", keys)
+    for splice in doc.get("splice_forces", []):
+        for value in ("tension", "compression"):
+            if splice.get(value):
+                row("splice", f"{splice['name']} in {splice['member'] or 'no member'}", value, splice[value],
+                    keys=" ".join(f"{c:g}" for c in splice["at"]))
     return headers, rows
 
 

@@ -21,6 +21,7 @@ __all__ = [
     "envelope_to_json",
     "members_to_json",
     "checks_to_json",
+    "splices_to_json",
     "comparison_to_json",
 ]
 
@@ -493,3 +494,11 @@ def checks_to_json(checks, units: OutputUnits) -> dict | None:
         "failures": len(checks.failures),
         "items": items,
     }
+
+
+def splices_to_json(splices, units: OutputUnits) -> list[dict]:
+    """Member force at each splice (:class:`planshear.postprocess.checks.Splice`): the member it
+    sits in, the largest tension and compression with their governing case."""
+    return [{"name": s.name, "at": [_r(units.length_out(v)) for v in s.at], "member": s.member,
+             "tension": _governing(s.tension, units), "compression": _governing(s.compression, units)}
+            for s in splices]

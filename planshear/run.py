@@ -19,7 +19,7 @@ from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
-from .postprocess.checks import DesignChecks, design_checks
+from .postprocess.checks import DesignChecks, Splice, design_checks, splice_forces
 from .postprocess.classify import Classification, classify
 from .postprocess.drift import DriftCheck, drift_checks
 from .postprocess.envelope import (
@@ -39,6 +39,7 @@ from .results import (
     envelope_to_json,
     irregularity_to_json,
     method_to_json,
+    splices_to_json,
 )
 from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
@@ -71,6 +72,7 @@ class Results:
     applied_consequences: tuple[str, ...] = ()  # irregularity consequences applied to the forces
     irregularities: tuple[Irregularity, ...] = ()  # ASCE 7-16 Table 12.3-1 checks
     checks: DesignChecks | None = None  # demand/capacity where the plan gives capacities
+    splice_forces: tuple[Splice, ...] = ()  # member force at each [[splice]]
 
     @property
     def units(self) -> OutputUnits:
@@ -106,6 +108,7 @@ class Results:
             "comparison": comparison_to_json(compare_walls(self.methods), units),
             "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
             "checks": checks_to_json(self.checks, units),
+            "splice_forces": splices_to_json(self.splice_forces, units),
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "
                          "(with the accidental torsion for rigid and semi-rigid); relative to F and F × plan size",
@@ -228,9 +231,12 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
                      "irregularity; all ±ecc cases of the rigid and semi-rigid assumptions)"
                      for (load, axis), ax in sorted(amplification.items()))
     checks = design_checks(plan, methods, cases, envelope, run)
+    # [[splice]] entries (name, point in m), where the plan reader provides them.
+    splices = tuple(splice_forces(plan, methods, cases, envelope,
+                                  [(s.name, s.at) for s in getattr(plan, "splices", ())]))
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
                    engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied,
-                   checks=checks)
+                   checks=checks, splice_forces=splices)
 
 
 def _torsional_amplification(irregularities) -> dict[tuple[str, str], float]:

@@ -263,29 +263,49 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
 
 @dataclass(frozen=True)
 class Splice:
-    """Force at one chord splice (N): largest tension and compression over the design
-    cases in the chord role and in the collector role (the latter with §12.10.2.1)."""
+    """Force at one chord or collector splice (N): largest tension and compression over the
+    design cases, the chord role as it is and the collector role × the case's §12.10.2.1
+    factor (``None``: no force of that sign)."""
 
-    line: str
-    at: float  # m along the line (plan-file convention)
+    name: str
+    at: tuple[float, float]  # m
+    member: str | None  # the member it sits in (grid line and bay), None off every member
     tension: Governing | None
     compression: Governing | None
 
 
 def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope: Envelope,
-                  splices: list[tuple[str, float]]) -> list[Splice]:
-    """The member force at each splice (grid line, position along it in m): the line's bar
-    force (semi-rigid) or collector diagram (flexible, rigid) and the chord diagrams of the
-    outline edges on that line, interpolated at the splice, over the design cases; the
-    collector role (load along the line, and the idealized collector diagrams) × the case's
-    §12.10.2.1 factor, the chord role as it is. To be fed from ``[[splice]]`` entries."""
+                  splices: list[tuple[str, np.ndarray]]) -> list[Splice]:
+    """The member force at each splice (name, point (x, y) in m), from the diagrams the
+    envelope uses, over the design cases: on a grid line its collector diagram (flexible,
+    rigid) or bar force (semi-rigid; the collector role in the cases along the line, the chord
+    role across it), and the chord diagram of every outline edge through the point (in the
+    semi-rigid model only across the edge where the edge lies on a grid line, whose bar force
+    that is). Fed from the plan's ``[[splice]]`` entries (``Plan.splices``) when present."""
     layout = envelope.layout
     by_name = {c.name: c for c in cases}
+    size = float(np.ptp(plan.outline, axis=0).max())
+    tol = 1e-6 * size
+    members = {} if layout is None else {m.line: m.name for m in layout.members if m.line is not None}
     out = []
-    for line_name, at in splices:
-        grid_line = plan.line(line_name)
-        edges = [] if layout is None else [k for k, v in layout.chord_line.items() if v == line_name]
-        point = grid_line.point(at)
+    for name, point in splices:
+        point = np.asarray(point, dtype=float)
+        grid_line = next((g for g in plan.grid_lines
+                          if abs(_cross(point - g.origin, g.direction)) <= tol), None)
+        t = None if grid_line is None else float((point - grid_line.origin) @ grid_line.direction)
+        edges = []  # (chord key, station from the edge's first corner, on a grid line, axis along)
+        for i in range(len(plan.outline)):
+            a, b = plan.outline[i], plan.outline[(i + 1) % len(plan.outline)]
+            length = float(np.hypot(*(b - a)))
+            e = (b - a) / length
+            s = float((point - a) @ e)
+            if abs(_cross(point - a, e)) <= tol and -tol <= s <= length + tol:
+                key = f"edge {i + 1}"
+                edges.append((key, s, layout is not None and layout.chord_line.get(key) is not None,
+                               None if layout is None else layout.chord_axis.get(key)))
+        member = members.get(grid_line.name) if grid_line is not None else None
+        if member is None and edges and layout is not None:
+            member = next((m.name for m in layout.members if edges[0][0] in m.chords), None)
         tension = compression = None
         for assumption, method in methods.items():
             semi = assumption.startswith("semirigid")
@@ -294,36 +314,29 @@ def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope:
                 if assumption not in envelope.allowed[case.axis]:
                     continue
                 values = []
-                line = result.lines.get(line_name)
-                if line is not None and len(line.stations) and line.stations[0] <= at <= line.stations[-1]:
+                line = None if grid_line is None else result.lines.get(grid_line.name)
+                if line is not None and len(line.stations) and line.stations[0] - tol <= t <= line.stations[-1] + tol:
                     along = not semi or grid_line.parallel_to in (None, case.axis)
                     factor = case.collector_rule.factor if along else 1.0
-                    values.append(factor * float(np.interp(at, line.stations, line.collector)))
-                for key in edges:
+                    values.append(factor * float(np.interp(t, line.stations, line.collector)))
+                for key, s, on_line, axis in edges:
                     chord = result.chords.get(key)
-                    if chord is None or not len(chord.stations) or (semi and grid_line.parallel_to == case.axis):
+                    if chord is None or not len(chord.stations) or (semi and on_line and axis == case.axis):
                         continue
-                    start = _edge_start(plan, key)
-                    s = float(np.hypot(*(point - start))) if start is not None else np.nan
-                    if np.isfinite(s) and chord.stations.min() <= s <= chord.stations.max():
-                        values.append(float(np.interp(s, chord.stations, chord.force)))
+                    if semi and on_line and line is not None:
+                        continue  # the same bar as the line's, already read above
+                    values.append(float(np.interp(s, chord.stations, chord.force)))
                 fd = case.combination.diaphragm
                 for v in values:
-                    if case.kind == "seismic":  # only +axis analyzed: the −axis case is the negative
-                        candidates = (v, -v)
-                    else:
-                        candidates = (v,)
-                    for c in candidates:
+                    # A seismic case reverses (only +axis is analyzed): both senses count.
+                    for c in ((v, -v) if case.kind == "seismic" else (v,)):
                         if c > 0 and (tension is None or fd * c > tension.value):
                             tension = Governing(fd * c, assumption, case_name, fd)
                         if c < 0 and (compression is None or fd * c < compression.value):
                             compression = Governing(fd * c, assumption, case_name, fd)
-        out.append(Splice(line_name, at, tension, compression))
+        out.append(Splice(name, (float(point[0]), float(point[1])), member, tension, compression))
     return out
 
 
-def _edge_start(plan: Plan, key: str) -> np.ndarray | None:
-    """First corner of outline edge "edge i" (m), or None for another chord."""
-    if not key.startswith("edge "):
-        return None
-    return plan.outline[int(key.split()[1]) - 1]
+def _cross(a: np.ndarray, b: np.ndarray) -> float:
+    return float(a[0] * b[1] - a[1] * b[0])
