@@ -427,12 +427,13 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
                 lines.append([name, m, case_name, line["reaction"], line["collector_peak"], line["collector_peak_at"],
                               line["unit_shear_left"], line["unit_shear_right"], line["residual"]])
             for name, chord in case["chords"].items():
-                chords.append([name, m, case_name, chord["peak"], chord["peak_at"]])
+                member = ((doc.get("envelope") or {}).get("chords", {}).get(name) or {}).get("member", "")
+                chords.append([name, m, case_name, chord["peak"], chord["peak_at"], member])
     write("walls.csv", ["wall", "assumption", "case", f"force [{f}]", f"drift [{d}]"], walls)
     write("lines.csv", ["line", "assumption", "case", f"reaction [{f}]", f"collector_peak [{f}]",
                         f"collector_peak_at [{p}]", f"unit_shear_left [{v}]", f"unit_shear_right [{v}]",
                         f"residual [{f}]"], lines)
-    write("chords.csv", ["edge", "assumption", "case", f"peak [{f}]", f"peak_at [{p}]"], chords)
+    write("chords.csv", ["edge", "assumption", "case", f"peak [{f}]", f"peak_at [{p}]", "member"], chords)
     rows = []
     for axis, check in ((doc.get("classification") or {}).get("directions") or {}).items():
         for span in check["spans"]:
@@ -660,11 +661,15 @@ def _design_checks_section(doc: dict, results, folder: Path, pdf: PdfPages) -> s
     checks part."""
     from .figures_checks import dc_map_figure
 
+    f = doc["units"]["force"]
     members = envelope_table(doc)
-    members = (members[0], [r for r in members[1] if r[0] == "member"])
+    members = (members[0], [r for r in members[1] if r[0] in ("member", "splice")])
     intro = ("Each member once, by grid line and bay, with both roles: chord (load across it) and collector (load "
              "along it; with Ω0 per ASCE 7-16 §12.10.2.1 where the case requires it); the design value is the larger.")
-    sections = [("Chords and collectors by member", _wrap(intro, 110) + _plain_rows(*members))]
+    # The PDF page is ~110 characters wide: the columns a reviewer needs first.
+    narrow = (["member", "", f"design ({f})", "role", "governs", f"chord ({f})", f"coll. ({f})", f"coll.·Ω0 ({f})"],
+              [[r[1], r[2], r[3], r[4], f"{r[5]} {r[6]}", r[8], r[9], r[10]] for r in members[1]])
+    sections = [("Chords and collectors by member", _wrap(intro, 110) + _plain_rows(*narrow))]
     body = f"<section><h2>Chords and collectors by member</h2><p>{_esc(intro)}</p>{_table(*members, 'members')}</section>"
     if not doc.get("checks"):
         _text_pages(pdf, sections)
@@ -673,7 +678,11 @@ def _design_checks_section(doc: dict, results, folder: Path, pdf: PdfPages) -> s
     failures = doc["checks"]["failures"]
     lead = (f"Basis: {doc['checks']['basis']}. {doc['checks']['rule']}. "
             + (f"{failures} check(s) FAIL (listed first)." if failures else "Every check with a capacity passes."))
-    sections.insert(0, ("Design checks", _wrap(lead, 110) + _plain_rows(*checks)))
+    narrow = (["item", "quantity", "demand", "capacity", "unit", "D/C", "status", "governs"],
+              [[c["item"], c["quantity"], _rounded(c["demand"], c["unit"]), _rounded(c["capacity"], c["unit"]),
+                c["unit"], _rounded(c["ratio"], "ratio"), c["status"],
+                f"{c['assumption'] or ''} {c['case'] or ''}"] for c in doc["checks"]["items"]])
+    sections.insert(0, ("Design checks", _wrap(lead, 110) + _plain_rows(*narrow)))
     _text_pages(pdf, sections)
     fig = dc_map_figure(results.plan, results.checks)
     figure = save(fig, folder / "figures", "dc_map", "Demand/capacity map")
