@@ -195,11 +195,37 @@ def _short_json(results: Results) -> dict:
     return short
 
 
+def _print_checks(doc: dict) -> None:
+    """Design checks, failures first (only when the plan gives capacities), and splice forces."""
+    force = doc["units"]["force"]
+    for splice in doc.get("splice_forces", []):
+        cells = [f"{key} {splice[key]['value']:.2f} {force} ({splice[key]['assumption']} {splice[key]['case']})"
+                 for key in ("tension", "compression") if splice.get(key)]
+        print(f"splice {splice['name']} in {splice['member'] or 'no member'}: " + ("; ".join(cells) or "no force"))
+    checks = doc.get("checks")
+    if not checks:
+        return
+    failures = checks["failures"]
+    print(f"\ndesign checks ({checks['basis']}; D/C = demand / capacity): "
+          + (f"{failures} FAIL" if failures else "all checks with a capacity pass"))
+    for c in checks["items"]:
+        if c["status"] == "no capacity":
+            continue
+        unit = c["unit"]
+        mark = "FAILS" if c["status"] == "fails" else "ok"
+        print(f"  {mark:5} D/C {c['ratio']:6.2f}  {c['item']} {c['quantity']}: {c['demand']:.2f} of "
+              f"{c['capacity']:.2f} {unit}  ({c['assumption']} {c['case']})")
+    missing = sorted({c["item"] for c in checks["items"] if c["status"] == "no capacity"})
+    if missing:
+        print(f"  no capacity given: {', '.join(missing)}")
+
+
 def _print_results(results: Results, out: Path) -> None:
     doc = results.to_json()
     units = doc["units"]
     force = units["force"]
     print(f"plan: {doc['plan']['name']}")
+    _print_checks(doc)
     for assumption, reason in doc["unavailable"].items():
         print(f"\n{assumption}: not run — {reason}")
     classification = doc.get("classification")
@@ -248,11 +274,12 @@ def _print_results(results: Results, out: Path) -> None:
                   + ("   (!) no collector bar in the model" if "caution" in slots else ""))
         elif "caution" in slots:  # e.g. a transfer strut that only the idealized methods have
             print(f"  {name}: (!) {slots['caution']}")
-    print(f"\nchord peaks ({force}, tension +)")
+    print(f"\nchord peaks ({force}, tension +; load across the member)")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
-            print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
+            label = slots.get("member", name)
+            print(f"  {label.ljust(14)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     _print_walls_along_chords(doc)
     drift = doc.get("drift")
     if drift:

@@ -110,8 +110,17 @@ def _case_from_analogy(
         max_unit_shear_at=max_at,
         max_displacement=max_displacement,
         equilibrium_residual=max(residual, collector_residual / case.force),
-        extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {})},
+        extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {}),
+               # V(s)/ℓ(s) along each span direction (N/m, stations m) for the design checks of the zones
+               "span_unit_shear": tuple((a.axis, a.stations, _unit_shear(a)) for a in (main, transverse)
+                                        if a is not None)},
     )
+
+
+def _unit_shear(analogy: BeamAnalogy) -> np.ndarray:
+    """V(s)/ℓ(s) (N/m) of a beam analogy; zero where no diaphragm is cut."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(analogy.length_available > 0, analogy.shear / analogy.length_available, 0.0)
 
 
 def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:

@@ -52,6 +52,7 @@ __all__ = [
     "Load",
     "MeshSettings",
     "ClassificationFlags",
+    "Capacities",
     "load_plan",
     "parse_plan",
     "Stability",
@@ -249,6 +250,26 @@ class Splice:
 
 
 @dataclass(frozen=True, eq=False)
+class Capacities:
+    """The engineer's capacities on the plan's design basis (SI; all optional). Unit-shear
+    capacities in N/m, forces in N; compression capacities are magnitudes."""
+
+    diaphragm: float | None = None  # [diaphragm] capacity: the diaphragm outside every zone
+    zones: dict[str, float] = field(default_factory=dict)  # zone name → [[diaphragm.zone]] capacity
+    walls: dict[str, tuple[str, float]] = field(default_factory=dict)  # id → ("force", N) | ("unit_shear", N/m)
+    wall_default: tuple[str, float] | None = None  # [capacity] wall | wall_unit_shear
+    # ("line", grid line) | ("name", member name) → (tension N | None, compression N | None)
+    members: dict[tuple[str, str], tuple[float | None, float | None]] = field(default_factory=dict)
+    member_default: tuple[float | None, float | None] = (None, None)  # [capacity] tension, compression
+
+    @property
+    def given(self) -> bool:
+        """Whether the plan states any capacity (the design checks run only then)."""
+        return bool(self.diaphragm is not None or self.zones or self.walls or self.wall_default or self.members
+                    or self.member_default != (None, None))
+
+
+@dataclass(frozen=True, eq=False)
 class Plan:
     """A validated plan in SI units. ``region`` is the outline less the openings."""
 
@@ -285,6 +306,7 @@ class Plan:
         return None, None
     transfers: tuple[Transfer, ...] = ()
     splices: tuple[Splice, ...] = ()
+    capacities: Capacities = field(default_factory=Capacities)
 
     def line(self, name: str) -> GridLine:
         for grid_line in self.grid_lines:
@@ -514,6 +536,7 @@ class _PlanBuilder:
         classification = self.classification(doc.get("classification", {}))
         chosen = self.design_envelope(doc.get("design", {}))
         basis = self.design_basis(doc.get("design", {}))
+        capacities = self.capacities(doc, zones, walls, lines_by_name)
         if self.problems:
             raise PlanError(self.problems)
         outline_xy = np.asarray(outline.exterior.coords)[:-1]
@@ -539,6 +562,7 @@ class _PlanBuilder:
             design_envelope=chosen,
             code=code,
             design_basis=basis,
+            capacities=capacities,
         )
         check_stability(plan)
         return plan
@@ -1180,6 +1204,86 @@ class _PlanBuilder:
             self.problem(where, f"the redundancy factor ρ is 1.0 or 1.3 (ASCE 7-16 §12.3.4), got {value}")
             return 1.0
         return float(value)
+
+    def capacities(self, doc: dict, zones: list[Zone], walls: list[Wall], lines: dict[str, GridLine]) -> Capacities:
+        """The optional capacities (README, "Capacities"): ``[diaphragm] capacity`` and
+        ``[[diaphragm.zone]] capacity`` (unit shear), ``[[wall]] capacity`` (force) or
+        ``unit_shear_capacity``, ``[[member]] tension_capacity`` / ``compression_capacity``
+        (the member on that grid line), and the ``[capacity]`` table of defaults and members."""
+        dia = doc["diaphragm"]
+        diaphragm = None
+        if "capacity" in dia:
+            diaphragm = self.quantity(dia["capacity"], LINE_LOAD, "diaphragm.capacity")
+        zone_names = {z.name for z in zones}
+        zone_caps = {}
+        for i, raw in enumerate(dia.get("zone", [])):
+            name = raw.get("name", f"zone {i + 1}")
+            if "capacity" in raw and name in zone_names:
+                value = self.quantity(raw["capacity"], LINE_LOAD, f'diaphragm.zone "{name}".capacity')
+                if value is not None:
+                    zone_caps[name] = value
+        wall_caps = {}
+        known_walls = {w.id for w in walls}
+        for raw in doc["wall"]:
+            where = f'wall "{raw["id"]}"'
+            if "capacity" in raw and "unit_shear_capacity" in raw:
+                self.problem(where, 'give either "capacity" (force) or "unit_shear_capacity" (force per length), not both')
+                continue
+            if raw["id"] not in known_walls:
+                continue
+            if "capacity" in raw:
+                value = self.quantity(raw["capacity"], FORCE, where + ".capacity")
+                if value is not None:
+                    wall_caps[raw["id"]] = ("force", value)
+            elif "unit_shear_capacity" in raw:
+                value = self.quantity(raw["unit_shear_capacity"], LINE_LOAD, where + ".unit_shear_capacity")
+                if value is not None:
+                    wall_caps[raw["id"]] = ("unit_shear", value)
+        table = doc.get("capacity", {})
+        wall_default = None
+        if "wall" in table and "wall_unit_shear" in table:
+            self.problem("capacity", 'give either "wall" (force) or "wall_unit_shear" (force per length), not both')
+        elif "wall" in table:
+            value = self.quantity(table["wall"], FORCE, "capacity.wall")
+            wall_default = None if value is None else ("force", value)
+        elif "wall_unit_shear" in table:
+            value = self.quantity(table["wall_unit_shear"], LINE_LOAD, "capacity.wall_unit_shear")
+            wall_default = None if value is None else ("unit_shear", value)
+
+        def pair(entry: dict, tension: str, compression: str, where: str) -> tuple[float | None, float | None]:
+            return tuple(self.quantity(entry[key], FORCE, f"{where}.{key}") if key in entry else None
+                         for key in (tension, compression))
+
+        member_default = pair(table, "tension", "compression", "capacity")
+        member_caps: dict[tuple[str, str], tuple[float | None, float | None]] = {}
+
+        def add(key: tuple[str, str], values: tuple, where: str) -> None:
+            if key in member_caps:
+                self.problem(where, f'the member {key[0]} "{key[1]}" has capacities twice; give them once')
+            elif values != (None, None):
+                member_caps[key] = values
+
+        for i, raw in enumerate(doc.get("member", [])):
+            where = f'member #{i + 1} (line "{raw["line"]}")'
+            if raw["line"] in lines:
+                add(("line", raw["line"]), pair(raw, "tension_capacity", "compression_capacity", where), where)
+        for i, raw in enumerate(table.get("member", [])):
+            where = f"capacity.member #{i + 1}"
+            if ("line" in raw) == ("name" in raw):
+                self.problem(where, 'give "line" (a grid line) or "name" (a member name as reported, e.g. '
+                             '"edge at y = 12 ft, 1–2"), one of them')
+                continue
+            if "line" in raw and raw["line"] not in lines:
+                close = difflib.get_close_matches(raw["line"], list(lines), n=1)
+                self.problem(where + ".line", f'"{raw["line"]}" is not a grid line'
+                             + (f' (did you mean "{close[0]}"?)' if close else f' (lines: {", ".join(lines)})'))
+                continue
+            if "tension" not in raw and "compression" not in raw:
+                self.problem(where, 'give "tension" and/or "compression" (forces, e.g. "12 kip")')
+                continue
+            key = ("line", raw["line"]) if "line" in raw else ("name", raw["name"])
+            add(key, pair(raw, "tension", "compression", where), where)
+        return Capacities(diaphragm, zone_caps, wall_caps, wall_default, member_caps, member_default)
 
     def design_basis(self, raw: dict) -> str | None:
         basis = raw.get("basis")

@@ -254,8 +254,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
          if slots.get("design")],
     )
     tables["chords"] = (
-        ["edge", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
-        [[n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
+        ["member (outline edge)", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
+        [[f"{s['member']} ({n})" if "member" in s else n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["information"] and s["information"]["value"]] for n, s in envelope["chords"].items()],
     )
     rows, line_rows = [], []
@@ -342,8 +342,75 @@ def transfer_tables(doc: dict, cases: set[str] | None = None) -> dict[str, tuple
     }
 
 
+#: Decimals of each output unit in envelope.csv and checks.csv: what the unit justifies
+#: (0.01 kip ≈ 44 N, 0.001 kip/ft = 1 plf, 0.01 ft ≈ 3 mm; kN, kN/m and m alike).
+DECIMALS = {"kip": 2, "kN": 2, "kip/ft": 3, "kN/m": 2, "ft": 2, "m": 3, "in": 3, "mm": 1, "ratio": 3}
+
+
+def _rounded(value, unit: str):
+    """``value`` rounded to :data:`DECIMALS` of ``unit``; blank when missing."""
+    if value is None:
+        return ""
+    return round(float(value), DECIMALS[unit])
+
+
+def envelope_table(doc: dict) -> tuple[list[str], list[list]]:
+    """envelope.csv: every wall, line reaction, member (chord and collector roles once per
+    member) and splice (its position under "source keys") with its design value, governing assumption, case and role, with and without Ω0,
+    and the load-combination factor; forces rounded per :data:`DECIMALS`."""
+    f = doc["units"]["force"]
+    envelope = doc.get("envelope") or {}
+    headers = ["kind", "name", "value", f"design [{f}]", "governing role", "assumption", "case",
+               "combination factor [-]", f"chord role [{f}]", f"collector role without Ω0 [{f}]",
+               f"collector role with Ω0 (ASCE 7-16 §12.10.2.1) [{f}]", "chord on", "source keys"]
+    rows = []
+
+    def row(kind, name, value, g, role="", chord=None, collector=None, omega=None, chord_on="", keys=""):
+        rows.append([kind, name, value, _rounded(g and g["value"], f), role, g["assumption"] if g else "",
+                     g["case"] if g else "", _rounded(g.get("combination_factor", 1.0) if g else None, "ratio"),
+                     _rounded(chord and chord["value"], f), _rounded(collector and collector["value"], f),
+                     _rounded(omega and omega["value"], f), chord_on, keys])
+
+    for wall, slots in envelope.get("walls", {}).items():
+        if slots.get("design"):
+            row("wall", wall, "force along the wall", slots["design"])
+    for line, slots in envelope.get("line_reactions", {}).items():
+        if slots.get("design"):
+            row("line", line, "reaction (sum of its walls)", slots["design"])
+    for name, m in envelope.get("members", {}).items():
+        keys = " ".join(k for k in [m["collector"]["source"] or "", *m["chord"]["sources"]] if k)
+        for value in ("tension", "compression"):
+            g = m.get(value)
+            if g:
+                row("member", name, value, g, g["role"], m["chord"][value], m["collector"][value],
+                    m["collector"][f"{value}_with_overstrength"], m["chord"]["bays"] or "", keys)
+    for splice in doc.get("splice_forces", []):
+        for value in ("tension", "compression"):
+            if splice.get(value):
+                row("splice", f"{splice['name']} in {splice['member'] or 'no member'}", value, splice[value],
+                    keys=" ".join(f"{c:g}" for c in splice["at"]))
+    return headers, rows
+
+
+def checks_table(doc: dict) -> tuple[list[str], list[list]]:
+    """checks.csv: every design check, failures first (results.json "checks")."""
+    units = doc["units"]
+    f, v = units["force"], units["unit_shear"]
+    headers = ["kind", "item", "quantity", f"demand [{f}]", f"capacity [{f}]", f"demand [{v}]", f"capacity [{v}]",
+               "D/C [-]", "status", "assumption", "case", "combination factor [-]", "note"]
+    rows = []
+    for c in (doc.get("checks") or {}).get("items", []):
+        shear = c["quantity"] == "unit shear"
+        pair = [_rounded(c["demand"], v if shear else f), _rounded(c["capacity"], v if shear else f)]
+        rows.append([c["kind"], c["item"], c["quantity"], *(["", ""] + pair if shear else pair + ["", ""]),
+                     _rounded(c["ratio"], "ratio"), c["status"], c["assumption"] or "", c["case"] or "",
+                     _rounded(c["combination_factor"], "ratio"), c.get("note", "")])
+    return headers, rows
+
+
 def write_tables(folder: Path, doc: dict) -> list[str]:
-    """walls.csv, lines.csv, chords.csv and classification.csv with units in the headers."""
+    """walls.csv, lines.csv, chords.csv, classification.csv, envelope.csv and (with
+    capacities) checks.csv with units in the headers."""
     units = doc["units"]
     f, p, d, v = units["force"], units["position"], units["displacement"], units["unit_shear"]
     written = []
@@ -364,12 +431,13 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
                 lines.append([name, m, case_name, line["reaction"], line["collector_peak"], line["collector_peak_at"],
                               line["unit_shear_left"], line["unit_shear_right"], line["residual"]])
             for name, chord in case["chords"].items():
-                chords.append([name, m, case_name, chord["peak"], chord["peak_at"]])
+                member = ((doc.get("envelope") or {}).get("chords", {}).get(name) or {}).get("member", "")
+                chords.append([name, m, case_name, chord["peak"], chord["peak_at"], member])
     write("walls.csv", ["wall", "assumption", "case", f"force [{f}]", f"drift [{d}]"], walls)
     write("lines.csv", ["line", "assumption", "case", f"reaction [{f}]", f"collector_peak [{f}]",
                         f"collector_peak_at [{p}]", f"unit_shear_left [{v}]", f"unit_shear_right [{v}]",
                         f"residual [{f}]"], lines)
-    write("chords.csv", ["edge", "assumption", "case", f"peak [{f}]", f"peak_at [{p}]"], chords)
+    write("chords.csv", ["edge", "assumption", "case", f"peak [{f}]", f"peak_at [{p}]", "member"], chords)
     rows = []
     for axis, check in ((doc.get("classification") or {}).get("directions") or {}).items():
         for span in check["spans"]:
@@ -382,6 +450,9 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
     write("classification.csv", ["direction", "case", "span", f"MDD [{d}]", f"ADVE [{d}]", "ratio [-]",
                                  "flexible", "behaviour", "verdict", "MDD_x", "MDD_y", f"MDD_local [{d}]",
                                  "MDD_local_x", "MDD_local_y"], rows)
+    write("envelope.csv", *envelope_table(doc))
+    if doc.get("checks"):
+        write("checks.csv", *checks_table(doc))
     return written
 
 
@@ -428,7 +499,9 @@ def _figures(doc: dict, results, folder: Path, pdf: PdfPages) -> dict[str, list[
             if not any(doc["assumptions"][a]["cases"].get(case_name, {}).get("chords", {}).get(edge, {}).get("diagram")
                        for a in assumptions):
                 continue
-            keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}", f"Chord force, {edge}, load along {axis}")
+            member = ((doc.get("envelope") or {}).get("chords", {}).get(edge) or {}).get("member", edge)
+            keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}",
+                 f"Chord force, {member} (outline {edge}), load along {axis}")
     if results.semirigid is not None:
         solution = results.semirigid.solution
         membrane = results.semirigid.membrane
@@ -552,8 +625,9 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
             + [""] + [line for text in LIMITATIONS_TEXT for line in _wrap(f"- {text}", 110)]
             + [""] + _wrap(CAUTION, 110),
         )])
+        checks_html = _design_checks_section(doc, results, folder, pdf)
     written.append("report.pdf")
-    (folder / "report.html").write_text(_html(doc, tables, figures), encoding="utf-8")
+    (folder / "report.html").write_text(_html(doc, tables, figures, checks_html), encoding="utf-8")
     written.append("report.html")
     return written
 
@@ -585,7 +659,43 @@ def _wrap(text: str, width: int) -> list[str]:
     return textwrap.wrap(text, width) or [""]
 
 
-def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
+def _design_checks_section(doc: dict, results, folder: Path, pdf: PdfPages) -> str:
+    """"Design checks" (failures first) and the chords and collectors by member: PDF pages
+    (table, then the D/C map) and the HTML section; empty HTML without capacities for the
+    checks part."""
+    from .figures_checks import dc_map_figure
+
+    f = doc["units"]["force"]
+    members = envelope_table(doc)
+    members = (members[0], [r for r in members[1] if r[0] in ("member", "splice")])
+    intro = ("Each member once, by grid line and bay, with both roles: chord (load across it) and collector (load "
+             "along it; with Ω0 per ASCE 7-16 §12.10.2.1 where the case requires it); the design value is the larger.")
+    # The PDF page is ~110 characters wide: the columns a reviewer needs first.
+    narrow = (["member", "", f"design ({f})", "role", "governs", f"chord ({f})", f"coll. ({f})", f"coll.·Ω0 ({f})"],
+              [[r[1], r[2], r[3], r[4], f"{r[5]} {r[6]}", r[8], r[9], r[10]] for r in members[1]])
+    sections = [("Chords and collectors by member", _wrap(intro, 110) + _plain_rows(*narrow))]
+    body = f"<section><h2>Chords and collectors by member</h2><p>{_esc(intro)}</p>{_table(*members, 'members')}</section>"
+    if not doc.get("checks"):
+        _text_pages(pdf, sections)
+        return body
+    checks = checks_table(doc)
+    failures = doc["checks"]["failures"]
+    lead = (f"Basis: {doc['checks']['basis']}. {doc['checks']['rule']}. "
+            + (f"{failures} check(s) FAIL (listed first)." if failures else "Every check with a capacity passes."))
+    narrow = (["item", "quantity", "demand", "capacity", "unit", "D/C", "status", "governs"],
+              [[c["item"], c["quantity"], _rounded(c["demand"], c["unit"]), _rounded(c["capacity"], c["unit"]),
+                c["unit"], _rounded(c["ratio"], "ratio"), c["status"],
+                f"{c['assumption'] or ''} {c['case'] or ''}"] for c in doc["checks"]["items"]])
+    sections.insert(0, ("Design checks", _wrap(lead, 110) + _plain_rows(*narrow)))
+    _text_pages(pdf, sections)
+    fig = dc_map_figure(results.plan, results.checks)
+    figure = save(fig, folder / "figures", "dc_map", "Demand/capacity map")
+    pdf.savefig(fig)
+    return (f"<section><h2>Design checks</h2><p>{_esc(lead)}</p>{_table(*checks, 'checks')}"
+            f"<figure>{figure.svg}<figcaption>{_esc(figure.title)}</figcaption></figure></section>" + body)
+
+
+def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]], checks_html: str = "") -> str:
     def section(title: str, body: str) -> str:
         return f"<section><h2>{_esc(title)}</h2>{body}</section>"
 
@@ -621,6 +731,7 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]]) -> str:
                 f"{_num(plan[area_key])} {_esc(area_key[5:])}; material: {_esc(plan['material'])}. "
                 f"Load cases: {_esc(', '.join(plan['cases']))}. planshear {__version__}.</p>"),
         section("Assumptions not run", f"<ul>{not_run}</ul>") if not_run else "",
+        checks_html,
         section("Plan drawing", figs(figures["plan"])),
         section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
         section("Loads and load cases", tab("loads") + tab("cases")),

@@ -19,6 +19,9 @@ __all__ = [
     "classification_to_json",
     "irregularity_to_json",
     "envelope_to_json",
+    "members_to_json",
+    "checks_to_json",
+    "splices_to_json",
     "comparison_to_json",
 ]
 
@@ -187,6 +190,8 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             ]
         elif key == "transfer":
             out[key] = [transfer_to_json(td, units) for td in value]
+        elif key == "span_unit_shear":
+            continue  # V/ℓ along the spans, kept for the design checks (checks.csv, results.json "checks")
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:
@@ -371,14 +376,54 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
     for name, text in envelope.cautions.items():
         collectors.setdefault(name, {})["caution"] = text
         lines.setdefault(name, {})["caution"] = text
+    members = members_to_json(envelope, units)
+    chords = table(envelope.chords)
+    for name, item in members.items():
+        for key in item["chord"]["sources"]:
+            if key in chords:
+                chords[key]["member"] = name
+        if item["collector"]["source"] in collectors:
+            collectors[item["collector"]["source"]]["member"] = name
     return {
         "allowed_assumptions": {axis: list(names) for axis, names in envelope.allowed.items()},
         "walls": table(envelope.walls),
         "lines": lines,
         "line_reactions": table(envelope.line_reactions),
         "collectors": collectors,
-        "chords": table(envelope.chords),
+        "chords": chords,
+        "members": members,
     }
+
+
+def members_to_json(envelope, units: OutputUnits) -> dict:
+    """Chords and collectors by member (grid line and bay), both roles, in output units:
+    ``chord`` (tension, compression; sources: the outline edges or declared chords, and
+    "across": the bar under load across it in the semi-rigid model), ``collector`` (tension,
+    compression without and with ASCE 7-16 §12.10.2.1), and the member's ``design`` value
+    with the role that governs it."""
+    from .postprocess.envelope import member_envelopes  # postprocess imports this module
+
+    out = {}
+    for name, m in member_envelopes(envelope).items():
+        (tension, t_role), (compression, c_role), (design, role) = m.tension, m.compression, m.design
+        member = m.member
+        out[name] = {
+            "line": member.line,
+            "from": None if not np.isfinite(member.start[0]) else [_r(units.length_out(v)) for v in member.start],
+            "to": None if not np.isfinite(member.end[0]) else [_r(units.length_out(v)) for v in member.end],
+            "chord": {"sources": list(member.chords), "bays": member.chord_bays,
+                      "tension": _governing(m.chord_tension, units),
+                      "compression": _governing(m.chord_compression, units)},
+            "collector": {"source": member.collector,
+                          "tension": _governing(m.collector_tension, units),
+                          "compression": _governing(m.collector_compression, units),
+                          "tension_with_overstrength": _governing(m.collector_tension_omega, units),
+                          "compression_with_overstrength": _governing(m.collector_compression_omega, units)},
+            "tension": None if tension is None else {**_governing(tension, units), "role": t_role},
+            "compression": None if compression is None else {**_governing(compression, units), "role": c_role},
+            "design": {**_governing(design, units), "role": role},
+        }
+    return out
 
 
 def comparison_to_json(table: dict, units: OutputUnits) -> dict:
@@ -419,3 +464,42 @@ def irregularity_to_json(item, units: OutputUnits) -> dict:
         if getattr(item, key) is not None:
             out[key] = getattr(item, key)
     return out
+
+
+def checks_to_json(checks, units: OutputUnits) -> dict | None:
+    """Design checks (a :class:`planshear.postprocess.checks.DesignChecks`), failures first:
+    demand and capacity in force or unit-shear units, D/C, status, governing case."""
+    if checks is None:
+        return None
+
+    def out(value: float | None, quantity: str) -> float | None:
+        if value is None:
+            return None
+        return _r(units.line_force_out(value) if quantity == "unit shear" else units.force_out(value))
+
+    items = []
+    for c in checks.checks:
+        g = c.governing
+        items.append({
+            "kind": c.kind, "item": c.item, "quantity": c.quantity,
+            "unit": units.line_force if c.quantity == "unit shear" else units.force,
+            "demand": out(c.demand, c.quantity), "capacity": out(c.capacity, c.quantity),
+            "ratio": None if c.ratio is None else _r(c.ratio, 4), "status": c.status,
+            "assumption": None if g is None else g.assumption, "case": None if g is None else g.case,
+            "combination_factor": None if g is None else _r(g.factor, 4),
+            **({"note": c.note} if c.note else {}),
+        })
+    return {
+        "basis": checks.basis or "unfactored (no [design] basis)",
+        "rule": "D/C = design demand / capacity on the design basis; above 1 fails",
+        "failures": len(checks.failures),
+        "items": items,
+    }
+
+
+def splices_to_json(splices, units: OutputUnits) -> list[dict]:
+    """Member force at each splice (:class:`planshear.postprocess.checks.Splice`): the member it
+    sits in, the largest tension and compression with their governing case."""
+    return [{"name": s.name, "at": [_r(units.length_out(v)) for v in s.at], "member": s.member,
+             "tension": _governing(s.tension, units), "compression": _governing(s.compression, units)}
+            for s in splices]

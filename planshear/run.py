@@ -19,23 +19,27 @@ from .idealized import flexible_analysis, rigid_analysis
 from .loads import LoadCase, expand_load_cases, seismic_weight
 from .mesh_export import write_mesh_files
 from .plan import Plan, assess_stability
+from .postprocess.checks import DesignChecks, Splice, design_checks, splice_forces
 from .postprocess.classify import Classification, classify
 from .postprocess.drift import DriftCheck, drift_checks
 from .postprocess.envelope import (
     Envelope,
     build_envelope,
     compare_walls,
+    member_layout,
     with_irregularity_increase,
 )
 from .postprocess.irregularity import Irregularity, detect_irregularities
 from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
+    checks_to_json,
     classification_to_json,
     comparison_to_json,
     envelope_to_json,
     irregularity_to_json,
     method_to_json,
+    splices_to_json,
 )
 from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
@@ -67,6 +71,8 @@ class Results:
     drift: tuple[DriftCheck, ...] = ()  # ASCE 7-16 §12.8.6 / §12.12.1, loads with drift inputs
     applied_consequences: tuple[str, ...] = ()  # irregularity consequences applied to the forces
     irregularities: tuple[Irregularity, ...] = ()  # ASCE 7-16 Table 12.3-1 checks
+    checks: DesignChecks | None = None  # demand/capacity where the plan gives capacities
+    splice_forces: tuple[Splice, ...] = ()  # member force at each [[splice]]
 
     @property
     def units(self) -> OutputUnits:
@@ -101,6 +107,8 @@ class Results:
             },
             "comparison": comparison_to_json(compare_walls(self.methods), units),
             "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
+            "checks": checks_to_json(self.checks, units),
+            "splice_forces": splices_to_json(self.splice_forces, units),
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "
                          "(with the accidental torsion for rigid and semi-rigid); relative to F and F × plan size",
@@ -199,13 +207,14 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     enveloped = dict(methods)
     for factor, method in sensitivity.items():
         enveloped[f"semirigid@{factor:g}"] = method
-    envelope = build_envelope(enveloped, cases, classification)
+    layout = member_layout(plan)
+    envelope = build_envelope(enveloped, cases, classification, layout=layout)
     struts = strut_cautions(plan, methods)
     if struts:
         envelope = replace(envelope, cautions={**envelope.cautions, **struts})
     engineer = None
     if plan.design_envelope:
-        engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope)
+        engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope, layout=layout)
     drift = tuple(drift_checks(plan, methods, cases, run))
     # ASCE 7-16 §12.3.3.4: SDC D–F with a Type 1a, 1b, 2 or 3 irregularity present.
     triggering = [i for i in irregularities if i.present and i.applies and any("12.3.3.4" in s for s in i.sections)]
@@ -221,8 +230,13 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     applied += tuple(f"§12.8.4.3: accidental eccentricity of load {load} along {axis} × Ax = {ax:.3f} (torsional "
                      "irregularity; all ±ecc cases of the rigid and semi-rigid assumptions)"
                      for (load, axis), ax in sorted(amplification.items()))
+    checks = design_checks(plan, methods, cases, envelope, run)
+    # [[splice]] entries (name, point in m), where the plan reader provides them.
+    splices = tuple(splice_forces(plan, methods, cases, envelope,
+                                  [(s.name, s.at) for s in getattr(plan, "splices", ())]))
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
-                   engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied)
+                   engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied,
+                   checks=checks, splice_forces=splices)
 
 
 def _torsional_amplification(irregularities) -> dict[tuple[str, str], float]:

@@ -94,6 +94,7 @@ PLAN_SCHEMA: dict = {
                 "material": MATERIAL,
                 "chord_EA": QUANTITY,
                 "collector_EA": QUANTITY,
+                "capacity": QUANTITY,
                 "zone": {
                     "type": "array",
                     "items": {
@@ -103,6 +104,7 @@ PLAN_SCHEMA: dict = {
                             "name": {"type": "string"},
                             "polygon": POLYGON,
                             "material": MATERIAL,
+                            "capacity": QUANTITY,
                         },
                         "additionalProperties": False,
                     },
@@ -140,6 +142,8 @@ PLAN_SCHEMA: dict = {
                     "from": NUMBER,
                     "to": NUMBER,
                     "stiffness": QUANTITY,
+                    "capacity": QUANTITY,
+                    "unit_shear_capacity": QUANTITY,
                     "pier": {
                         "type": "object",
                         "required": ["E", "thickness", "height"],
@@ -179,6 +183,8 @@ PLAN_SCHEMA: dict = {
                     "from": NUMBER,
                     "to": NUMBER,
                     "effective_width": NUMBER,
+                    "tension_capacity": QUANTITY,
+                    "compression_capacity": QUANTITY,
                 },
                 "additionalProperties": False,
             },
@@ -287,6 +293,25 @@ PLAN_SCHEMA: dict = {
                 "size": NUMBER,
                 "order": {"type": "integer"},
                 "element": {"type": "string"},
+            },
+            "additionalProperties": False,
+        },
+        "capacity": {
+            "type": "object",
+            "properties": {
+                "wall": QUANTITY,
+                "wall_unit_shear": QUANTITY,
+                "tension": QUANTITY,
+                "compression": QUANTITY,
+                "member": {
+                    "type": "array",
+                    "items": {
+                        "type": "object",
+                        "properties": {"line": {"type": "string"}, "name": {"type": "string"},
+                                       "tension": QUANTITY, "compression": QUANTITY},
+                        "additionalProperties": False,
+                    },
+                },
             },
             "additionalProperties": False,
         },

@@ -8,11 +8,24 @@ never reduces a design force. Collector forces of seismic cases are also given w
 overstrength of ASCE 7-16 §12.10.2.1, separately. Chords and collectors also get their
 largest tension and largest compression with the cases that govern them; ties go to the
 base case and the simpler assumption.
+
+Roles by load direction (semi-rigid model): a bar carries one force, whatever acts on it.
+A member along x is a collector under load along x (it drags the diaphragm's shear into the
+walls of its line) and a chord under load along y (it takes M/d of the span across it).
+So the semi-rigid bar force of a grid line enters its collector role only in the cases
+along the line, and in the cases across it enters the member's chord role (slots
+``across_tension`` / ``across_compression`` of the line, never with Ω0); an outline-edge
+chord on a grid line enters the chord role only in the cases across it (in the cases along
+it the same bar is the line's collector). The idealized methods keep their roles apart by
+construction (collector = running sum along the line, chord = M/depth) and are taken as
+they are. Members are named by grid line and bay (:func:`member_layout`).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+
+import numpy as np
 
 from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
 from planshear.loads import LoadCase
@@ -21,7 +34,8 @@ from planshear.results import MethodResult
 from .classify import Classification
 from .transfer import transfer_peaks
 
-__all__ = ["Governing", "Envelope", "build_envelope", "compare_walls", "with_irregularity_increase"]
+__all__ = ["Governing", "Envelope", "MemberName", "MemberLayout", "MemberEnvelope", "build_envelope", "compare_walls",
+           "member_envelopes", "member_layout", "with_irregularity_increase"]
 
 
 @dataclass(frozen=True)
@@ -46,6 +60,7 @@ class Envelope:
     # collector → how ASCE 7-16 §12.10.2.1 set its design force ("with_overstrength"): factor on the
     # governing case's force, the value without the Exception 1 cap, the cap, which governed (N)
     collector_rules: dict[str, dict] = field(default_factory=dict)
+    layout: MemberLayout | None = None  # the plan's members by grid line and bay (roles kept apart when given)
 
 
 def _allowed(classification: Classification | None, methods: dict[str, MethodResult]) -> dict[str, tuple[str, ...]]:
@@ -95,11 +110,12 @@ def _better(current: Governing | None, value: float, assumption: str, case: str,
 
 def build_envelope(
     methods: dict[str, MethodResult], cases: list[LoadCase] | tuple[LoadCase, ...], classification: Classification | None,
-    chosen: tuple[str, ...] | None = None,
+    chosen: tuple[str, ...] | None = None, layout: MemberLayout | None = None,
 ) -> Envelope:
     """Envelope over allowed assumptions and all cases (see module docstring). ``chosen``
     replaces the code-allowed assumptions by the engineer's (the sensitivity runs of the
-    semi-rigid model join "semirigid")."""
+    semi-rigid model join "semirigid"). ``layout`` (from :func:`member_layout`) keeps the
+    chord and collector roles of the semi-rigid bar forces apart by load direction."""
     allowed = _allowed(classification, methods)
     if chosen is not None:
         picked = tuple(m for m in methods if m.split("@")[0] in chosen)
@@ -141,13 +157,20 @@ def build_envelope(
                 slot[assumption] = better(slot.get(assumption), force, assumption, case_name, factor=fv)
                 if design:
                     slot["design"] = better(slot["design"], force, assumption, case_name, factor=fv)
+            semirigid = assumption.startswith("semirigid") and layout is not None
             for name, line in result.lines.items():
                 r = reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
                 r["information"] = better(r["information"], to_fx * line.reaction, assumption, case_name, factor=fv)
-                c["information"] = better(c["information"], line.peak, assumption, case_name, factor=fd)
                 if design:
                     r["design"] = better(r["design"], to_fx * line.reaction, assumption, case_name, factor=fv)
+                if semirigid and layout.line_axis.get(name) not in (None, case.axis):
+                    # Load across the line: the bar is a chord here (no Ω0), see the module docstring.
+                    if design:
+                        extremes(c, line.collector, assumption, case_name, "across_", combination=fd)
+                    continue
+                c["information"] = better(c["information"], line.peak, assumption, case_name, factor=fd)
+                if design:
                     c["design"] = better(c["design"], line.peak, assumption, case_name, factor=fd)
                     c["with_overstrength"] = better(c["with_overstrength"], omega * line.peak, assumption, case_name,
                                                     factor=fd)
@@ -168,6 +191,8 @@ def build_envelope(
             diagrams = [(name, chord.peak, chord.force) for name, chord in result.chords.items()]
             diagrams += [(name, peak, [peak]) for name, peak in extra_chords]
             for name, peak, values in diagrams:
+                if semirigid and layout.chord_line.get(name) is not None and layout.chord_axis.get(name) == case.axis:
+                    continue  # load along a chord on a grid line: that bar is the line's collector here
                 slot = chords.setdefault(name, {"design": None, "information": None})
                 slot["information"] = better(slot["information"], peak, assumption, case_name, factor=fd)
                 if design:
@@ -204,7 +229,7 @@ def build_envelope(
         rules[name] = {"clause": "ASCE 7-16 §12.10.2.1", "governs": rule.governs, "factor": rule.factor,
                        "without_cap": at_case * rule.uncapped,
                        "cap": None if rule.cap is None else at_case * rule.cap, "note": rule.note}
-    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis, rules)
+    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis, rules, layout)
 
 
 def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -> Envelope:
@@ -250,3 +275,197 @@ def compare_walls(methods: dict[str, MethodResult]) -> dict[str, dict[str, dict[
                 ratio = semi / base if semi is not None and base not in (None, 0.0) and abs(base) > 1e-9 else None
                 values[f"semirigid/{other}"] = ratio
     return table
+
+
+# --------------------------------------------------------------------------------------
+# Members by grid line and bay
+# --------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class MemberName:
+    """One physical member as a reviewer names it (see :func:`member_layout`)."""
+
+    name: str  # "line B, 1–4", "edge at y = 12 ft, 2–3"
+    line: str | None  # grid line it lies on (None: an outline edge off the grid)
+    start: tuple[float, float]  # m, plan coordinates of its ends
+    end: tuple[float, float]
+    collector: str | None  # key of its collector role in Envelope.collectors (the grid line)
+    chords: tuple[str, ...]  # keys of its chord role in Envelope.chords ("edge 3", "chord on B")
+    chord_bays: str | None  # where along the member the chord role acts, e.g. "3–4"
+
+
+@dataclass(frozen=True)
+class MemberLayout:
+    """The plan's chords and collectors by grid line and bay, and the axis each runs along."""
+
+    members: tuple[MemberName, ...]
+    line_axis: dict[str, str | None]  # grid line → axis it runs along (None: skewed)
+    chord_line: dict[str, str | None]  # chord key → grid line it lies on
+    chord_axis: dict[str, str | None]  # chord key → axis it runs along
+
+
+def _cross(a: np.ndarray, b: np.ndarray) -> float:
+    return float(a[0] * b[1] - a[1] * b[0])
+
+
+def _bays(plan, origin: np.ndarray, direction: np.ndarray, t0: float, t1: float, skip: str | None, tol: float) -> str:
+    """"1–4": the grid lines crossing the line (origin, direction) at t0 and t1; an end on no
+    crossing grid line is written as its coordinate ("x = 62 ft")."""
+    crossings = []
+    for g in plan.grid_lines:
+        denominator = _cross(direction, g.direction)
+        if g.name == skip or abs(denominator) < 1e-9:
+            continue
+        crossings.append((_cross(g.origin - origin, g.direction) / denominator, g.name))
+
+    def end(t: float) -> str:
+        near = sorted((abs(tc - t), name) for tc, name in crossings if abs(tc - t) <= tol)
+        if near:
+            return near[0][1]
+        p = origin + t * direction
+        axis = 0 if abs(direction[0]) >= abs(direction[1]) else 1
+        return f"{'xy'[axis]} = {p[axis] / plan.length_scale:.4g} {plan.length_unit}"
+
+    lo, hi = sorted((t0, t1))
+    return f"{end(lo)}–{end(hi)}"
+
+
+def member_layout(plan) -> MemberLayout:
+    """Name every chord and collector by grid line and bay, one member per physical line.
+
+    Rule: a member on a grid line is "line L, a–b", where a and b are the grid lines that cross
+    L at the ends of its extent over the diaphragm; one member per grid line carries the line's
+    collector role and the chord role of every outline edge (or declared chord) on it, with the
+    bays of the chord part ("chord 3–4"). An outline edge on no grid line is "edge at y = 12 ft,
+    a–b" (its coordinate, then the crossing grid lines at its ends); an end where no grid line
+    crosses is written as its coordinate ("x = 62 ft"); a skewed edge off the grid is named by
+    its end coordinates. The outline is counter-clockwise, edge i from corner i to i + 1.
+    """
+    size = float(np.ptp(plan.outline, axis=0).max())
+    tol = 1e-4 * size
+    line_axis = {g.name: g.parallel_to for g in plan.grid_lines}
+    chord_line: dict[str, str | None] = {}
+    chord_axis: dict[str, str | None] = {}
+    on_line: dict[str, list[tuple[str, float, float]]] = {}
+    off_grid = []
+    outline = plan.outline
+    for i in range(len(outline)):
+        a, b = outline[i], outline[(i + 1) % len(outline)]
+        key = f"edge {i + 1}"
+        d = (b - a) / float(np.hypot(*(b - a)))
+        axis = "x" if abs(d[1]) <= 1e-9 else "y" if abs(d[0]) <= 1e-9 else None
+        chord_axis[key] = axis
+        host = next((g for g in plan.grid_lines
+                     if abs(_cross(a - g.origin, g.direction)) <= tol and abs(_cross(b - g.origin, g.direction)) <= tol),
+                    None)
+        chord_line[key] = None if host is None else host.name
+        if host is not None:
+            on_line.setdefault(host.name, []).append((key, float((a - host.origin) @ host.direction),
+                                                      float((b - host.origin) @ host.direction)))
+        else:
+            off_grid.append((key, a, b, d, axis))
+    for member in plan.members:
+        if member.role == "chord":
+            key = f"chord on {member.line}"
+            chord_line[key], chord_axis[key] = member.line, line_axis.get(member.line)
+            on_line.setdefault(member.line, []).append((key, member.t_from, member.t_to))
+    members = []
+    for g in plan.grid_lines:
+        chords = on_line.get(g.name, [])
+        t_lo = min([g.t_min] + [min(t0, t1) for _, t0, t1 in chords])
+        t_hi = max([g.t_max] + [max(t0, t1) for _, t0, t1 in chords])
+        chord_bays = None
+        if chords:
+            chord_bays = _bays(plan, g.origin, g.direction, min(min(t0, t1) for _, t0, t1 in chords),
+                               max(max(t0, t1) for _, t0, t1 in chords), g.name, tol)
+        members.append(MemberName(
+            f"line {g.name}, {_bays(plan, g.origin, g.direction, t_lo, t_hi, g.name, tol)}", g.name,
+            tuple(g.point(t_lo)), tuple(g.point(t_hi)), g.name, tuple(k for k, _, _ in chords), chord_bays))
+    for key, a, b, d, axis in off_grid:
+        unit, scale = plan.length_unit, plan.length_scale
+        if axis is None:
+            name = (f"edge ({a[0] / scale:.4g}, {a[1] / scale:.4g})–({b[0] / scale:.4g}, {b[1] / scale:.4g}) {unit}")
+        else:
+            across = 1 if axis == "x" else 0
+            name = (f"edge at {'xy'[across]} = {a[across] / scale:.4g} {unit}, "
+                    f"{_bays(plan, a, d, 0.0, float(np.hypot(*(b - a))), None, tol)}")
+        members.append(MemberName(name, None, tuple(a), tuple(b), None, (key,), None))
+    return MemberLayout(tuple(members), line_axis, chord_line, chord_axis)
+
+
+@dataclass(frozen=True)
+class MemberEnvelope:
+    """Design forces of one member in both its roles (N, combination factor applied).
+    The collector role is given without and with ASCE 7-16 §12.10.2.1 (Ω0 where the case
+    requires it); the member's design tension / compression is the larger of the chord role
+    and the collector role (the larger of its values with and without §12.10.2.1, which
+    differ where §12.3.3.4 raised only the latter); the second item of each pair says which
+    role governs."""
+
+    member: MemberName
+    chord_tension: Governing | None
+    chord_compression: Governing | None
+    collector_tension: Governing | None
+    collector_compression: Governing | None
+    collector_tension_omega: Governing | None
+    collector_compression_omega: Governing | None
+
+    def _pick(self, chord: Governing | None, collector: Governing | None) -> tuple[Governing | None, str | None]:
+        if chord is None and collector is None:
+            return None, None
+        if collector is None or (chord is not None and abs(chord.value) >= abs(collector.value)):
+            return chord, "chord"
+        return collector, "collector"
+
+    @property
+    def tension(self) -> tuple[Governing | None, str | None]:
+        return self._pick(self.chord_tension, _largest([self.collector_tension_omega, self.collector_tension], 1.0))
+
+    @property
+    def compression(self) -> tuple[Governing | None, str | None]:
+        return self._pick(self.chord_compression,
+                          _largest([self.collector_compression_omega, self.collector_compression], -1.0))
+
+    @property
+    def design(self) -> tuple[Governing | None, str | None]:
+        (t, tr), (c, cr) = self.tension, self.compression
+        if t is None or (c is not None and abs(c.value) > abs(t.value)):
+            return c, cr
+        return t, tr
+
+
+def _largest(values: list[Governing | None], sign: float) -> Governing | None:
+    found = [g for g in values if g is not None]
+    return max(found, key=lambda g: sign * g.value) if found else None
+
+
+def member_envelopes(envelope: Envelope) -> dict[str, MemberEnvelope]:
+    """Member name → both roles of that member (see :func:`member_layout`); members with no
+    force in either role are left out. Transfer-region struts keep their own names."""
+    layout = envelope.layout
+    if layout is None:
+        return {}
+    out: dict[str, MemberEnvelope] = {}
+    named = [(m, m.collector, m.chords) for m in layout.members]
+    known_collectors = {m.collector for m in layout.members}
+    known_chords = {k for m in layout.members for k in m.chords}
+    for name in envelope.collectors:
+        if name not in known_collectors:
+            named.append((MemberName(name, None, (np.nan, np.nan), (np.nan, np.nan), name, (), None), name, ()))
+    for name in envelope.chords:
+        if name not in known_chords:
+            named.append((MemberName(name, None, (np.nan, np.nan), (np.nan, np.nan), None, (name,), None), None, (name,)))
+    for member, collector, chords in named:
+        c = envelope.collectors.get(collector, {}) if collector else {}
+        slots = [envelope.chords.get(k, {}) for k in chords]
+        item = MemberEnvelope(
+            member,
+            _largest([s.get("tension") for s in slots] + [c.get("across_tension")], 1.0),
+            _largest([s.get("compression") for s in slots] + [c.get("across_compression")], -1.0),
+            c.get("tension"), c.get("compression"),
+            c.get("with_overstrength_tension"), c.get("with_overstrength_compression"),
+        )
+        if item.design[0] is not None:
+            out[member.name] = item
+    return out
