@@ -130,10 +130,11 @@ class Results:
             "directions": {},
         }
 
-    def write(self, folder: str | Path, report: bool = True) -> Path:
+    def write(self, folder: str | Path, report: bool = True, mesh_units: str = "si") -> Path:
         """Write the output folder completely or not at all: everything goes into a
         temporary folder next to ``folder`` that replaces it only once complete.
-        ``report=False`` leaves out the report, tables and figures."""
+        ``report=False`` leaves out the report, tables and figures; ``mesh_units`` ("si" or
+        "plan") are the units of the mesh files (see planshear.mesh_export)."""
         folder = Path(folder)
         parent = folder.resolve().parent
         parent.mkdir(parents=True, exist_ok=True)
@@ -147,7 +148,8 @@ class Results:
             text = json.dumps(doc, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
             (staging / "results.json").write_text(text + "\n", encoding="utf-8")
             if self.semirigid is not None:
-                write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane)
+                write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane,
+                                 units=mesh_units)
             if report:
                 from .report import (
                     write_review_package,  # the report module imports this one's types
