@@ -28,6 +28,7 @@ from .postprocess.envelope import (
     with_irregularity_increase,
 )
 from .postprocess.irregularity import Irregularity, detect_irregularities
+from .postprocess.traceability import build_traceability
 from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
@@ -36,6 +37,7 @@ from .results import (
     envelope_to_json,
     irregularity_to_json,
     method_to_json,
+    traceability_to_json,
 )
 from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
@@ -100,6 +102,8 @@ class Results:
                 **envelope_to_json(self.engineer_envelope, units),
             },
             "comparison": comparison_to_json(compare_walls(self.methods), units),
+            "traceability": traceability_to_json(
+                build_traceability(self.plan, self.cases, self.methods.get("flexible")), units),
             "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
             "equilibrium": {
                 "check": "every case: wall forces against the load's force along x and y and moment about z "

@@ -1,0 +1,133 @@
+"""Traceability: the seismic weight item by item, Fpx, wall stiffness terms and the worked
+spans, each checked against numbers worked out by hand here (not by planshear)."""
+
+from __future__ import annotations
+
+from importlib import resources
+
+import pytest
+
+from planshear import analyze, parse_plan
+
+from conftest import end_walls, rectangle_plan
+
+
+@pytest.fixture(scope="module")
+def demo_doc():
+    text = resources.files("planshear").joinpath("data/demo.toml").read_text(encoding="utf-8")
+    return analyze(parse_plan(text, "demo.toml"), semirigid=False).to_json()
+
+
+def test_demo_weight_breakdown_sums_to_the_weight_used(demo_doc):
+    """Demo plan: area (160 × 50 + 100 × 40 − 12 × 12) ft² = 11 856 ft² at 18 psf, line 1
+    90 ft × 0.2 kip/ft, one 6 kip point: 213.408 + 18 + 6 = 237.408 kip (independent
+    calculation by hand from the plan's numbers)."""
+    weight = demo_doc["traceability"]["seismic_weight"]["E"]
+    area, line, point = weight["items"]
+    assert area["gross_area"] == pytest.approx(12000.0, rel=1e-12)
+    assert area["deductions"] == [{"opening": "opening 1", "area": pytest.approx(144.0, rel=1e-12)}]
+    assert area["net_area"] == pytest.approx(11856.0, rel=1e-12)
+    assert area["weight"] == pytest.approx(11856.0 * 0.018, rel=1e-9)
+    assert line["weight"] == pytest.approx(90 * 0.2, rel=1e-12) and point["weight"] == pytest.approx(6.0)
+    assert weight["total"] == pytest.approx(237.408, rel=1e-9)
+    assert weight["used_in_analysis"] == pytest.approx(237.408, rel=1e-9)
+    assert demo_doc["plan"]["loads"]["E"]["seismic_weight"] == pytest.approx(weight["total"], rel=1e-9)
+
+
+def test_demo_fpx_equations(demo_doc):
+    """ASCE 7-16 §12.10.1.1, Eqs. 12.10-1 (0.2 × 237.408 = 47.4816 kip), 12.10-2
+    (0.2 × 0.9 × 1.0 × 237.408 = 42.73344 kip) and 12.10-3 (0.4 × 0.9 × 1.0 × 237.408 =
+    85.46688 kip); 12.10-1 lies between the bounds and governs."""
+    fpx = demo_doc["traceability"]["seismic_weight"]["E"]["fpx"]
+    assert fpx["equations"]["12.10-1"]["value"] == pytest.approx(47.4816, rel=1e-9)
+    assert fpx["equations"]["12.10-2"]["value"] == pytest.approx(42.73344, rel=1e-9)
+    assert fpx["equations"]["12.10-3"]["value"] == pytest.approx(85.46688, rel=1e-9)
+    assert fpx["governing"] == "12.10-1" and fpx["Fpx"] == pytest.approx(47.4816, rel=1e-9)
+    assert demo_doc["plan"]["loads"]["E"]["fpx_values"]["12.10-1"] == pytest.approx(fpx["Fpx"], rel=1e-9)
+
+
+def test_demo_wall_stiffness_terms(demo_doc):
+    """Terms in in/kip worked by hand. W3 (wood, ANSI/AWC SDPWS-2015 Eq. 4.3-1 with a linear
+    hold-down, h = 144 in, b = 240 in, EA = 1500 kip, Ga = 20 kip/in, k_hd = 50 kip/in):
+    2h³/(3EAb²) = 0.02304, h/(Ga b) = 0.03, h²/(k_hd b²) = 0.0072. W2 (cantilever pier,
+    Taly, Design of Reinforced Masonry Structures, 2nd ed., 2010, §7.4.2; E = 1000 ksi,
+    G = 0.4E, t = 6 in, d = 72 in, h = 144 in): h³/(3EI) = 144³/(3 × 1000 × 6 × 72³/12) =
+    0.0053333, 1.2h/(AG) = 1.2 × 144/(432 × 400) = 0.001."""
+    walls = demo_doc["traceability"]["wall_stiffness"]
+    w3 = walls["W3"]["terms"]
+    assert w3["bending"]["value"] == pytest.approx(0.02304, rel=1e-9)
+    assert w3["shear"]["value"] == pytest.approx(0.03, rel=1e-9)
+    assert w3["holdown"]["value"] == pytest.approx(0.0072, rel=1e-9)
+    assert walls["W3"]["k"] == pytest.approx(1 / 0.06024, rel=1e-9)
+    w2 = walls["W2"]["terms"]
+    assert w2["flexure"]["value"] == pytest.approx(144**3 / (3 * 1000 * 6 * 72**3 / 12), rel=1e-9)
+    assert w2["shear"]["value"] == pytest.approx(1.2 * 144 / (6 * 72 * 400), rel=1e-9)
+    for wall_id, wall in walls.items():  # the traced k is the k the analysis used
+        # plan.wall_stiffness is rounded to 6 decimals (kip/in) in results.json.
+        assert wall["k"] == pytest.approx(demo_doc["plan"]["wall_stiffness"][wall_id]["k"], abs=1e-6)
+        # JSON values carry 9 significant digits.
+        assert wall["flexibility_total"] == pytest.approx(sum(t["value"] for t in wall["terms"].values()), rel=1e-8)
+
+
+def test_demo_worked_spans_match_the_flexible_results(demo_doc):
+    """One worked span per load direction; its hand numbers equal the flexible method's
+    (unit shears and line forces to round-off; the chord force to 1e-3, because the
+    program's chord diagram is sampled at stations and read here by linear interpolation)."""
+    spans = demo_doc["traceability"]["worked_spans"]
+    assert sorted(s["load_axis"] for s in spans) == ["x", "y"]
+    for span in spans:
+        for check in span["check_against_flexible"]:
+            limit = 1e-3 if check["quantity"].startswith("chord") else 1e-9
+            assert abs(check["relative_difference"]) <= limit, check
+        steps = {s["quantity"]: s["value"] for s in span["steps"]}
+        assert steps["T = C"] > 0 and steps["v_left"] > 0
+
+
+def test_worked_span_uniform_load_and_a_concentrated_load():
+    """Simple beam, L = 100 ft, uniform w plus a concentrated P at a = 30 ft (AISC Steel
+    Construction Manual, 15th ed., Table 3-23, cases 1 and 8 superposed — from memory):
+    weights 20 psf × 100 × 50 ft = 100 kip and a 0.5 kip/ft line weight on x = 30 ft
+    (along the load: 25 kip at one station), scaled to the given total 62.5 kip (× 0.5):
+    w = 0.5 kip/ft, P = 12.5 kip. R_left = wL/2 + P(L − a)/L = 33.75 kip, R_right =
+    28.75 kip; V = 0 at 30 + (33.75 − 15 − 12.5)/0.5 = 42.5 ft, M = 33.75 × 42.5 −
+    0.5 × 42.5²/2 − 12.5 × 12.5 = 826.5625 kip·ft; v = 33.75/50 kip/ft; T = M/50."""
+    load = """
+[[load]]
+name = "E"
+kind = "seismic"
+area_weight = "20 psf"
+line_weight = [{ line = "M", weight = "0.5 kip/ft" }]
+total = "62.5 kip"
+directions = ["y"]
+"""
+    grid = 'x = { "1" = 0, "M" = 30, "2" = 100 }\ny = { "A" = 0, "B" = 50 }'
+    plan = parse_plan(rectangle_plan(walls=end_walls(), load=load, grid=grid), "span.toml")
+    doc = analyze(plan, semirigid=False).to_json()
+    (span,) = doc["traceability"]["worked_spans"]
+    steps = {s["quantity"]: s["value"] for s in span["steps"]}
+    assert span["span"] == "1-2" and span["L"] == pytest.approx(100.0)
+    assert steps["W"] == pytest.approx(62.5, rel=1e-9)
+    assert steps["R_left"] == pytest.approx(33.75, rel=1e-9)
+    assert steps["R_right"] == pytest.approx(28.75, rel=1e-9)
+    assert steps["V_max"] == pytest.approx(33.75, rel=1e-9)
+    # Trapezoid rule on a 4001-point grid: M to about 1e-7.
+    assert steps["M_max"] == pytest.approx(826.5625, rel=1e-6)
+    assert steps["v_left"] == pytest.approx(33.75 / 50, rel=1e-9)
+    assert steps["T = C"] == pytest.approx(826.5625 / 50, rel=1e-6)
+    assert span["load"]["points_in_span"] == [{"at": pytest.approx(30.0), "P": pytest.approx(12.5, rel=1e-9)}]
+
+
+def test_worked_span_uniform_formulas():
+    """Uniform load on a simple span, R = wL/2 and M = wL²/8 (AISC Steel Construction
+    Manual, 15th ed., Table 3-23 case 1 — from memory): 100 kip on 100 ft → w = 1 kip/ft,
+    R = 50 kip, M = 1250 kip·ft, v = 50/50 = 1 kip/ft, T = C = 1250/50 = 25 kip."""
+    plan = parse_plan(rectangle_plan(walls=end_walls()), "uniform.toml")
+    doc = analyze(plan, semirigid=False).to_json()
+    span = next(s for s in doc["traceability"]["worked_spans"] if s["load_axis"] == "y")
+    steps = {s["quantity"]: s for s in span["steps"]}
+    assert steps["w"]["value"] == pytest.approx(1.0, rel=1e-12)
+    assert steps["R"]["formula"] == "w·L/2" and steps["R"]["value"] == pytest.approx(50.0, rel=1e-12)
+    assert steps["M_max"]["formula"] == "w·L²/8" and steps["M_max"]["value"] == pytest.approx(1250.0, rel=1e-6)
+    assert steps["v_left"]["value"] == pytest.approx(1.0, rel=1e-12)
+    assert steps["T = C"]["value"] == pytest.approx(25.0, rel=1e-6)
+    assert all(abs(c["relative_difference"]) <= 1e-3 for c in span["check_against_flexible"])
