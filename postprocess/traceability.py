@@ -23,7 +23,7 @@ from planshear.results import MethodResult
 from .beam_analogy import load_along_span
 
 __all__ = ["WeightItem", "WeightBreakdown", "WallTrace", "WorkedSpan", "Traceability", "build_traceability",
-           "weight_breakdown"]
+           "weight_breakdown", "traced_section"]
 
 #: Stations per span for the numerical integration of M = ∫V in the worked span; the
 #: trapezoid rule on V (quadratic between breakpoints) then errs by about 1e-8 of M.
@@ -316,3 +316,63 @@ def build_traceability(plan: Plan, cases, flexible: MethodResult | None) -> Trac
             spans.append(best[1])
     return Traceability(weights, walls, tuple(spans), tuple(notes))
 
+
+
+def traced_section(doc: dict) -> dict:
+    """The report section "Loads and stiffness, traced" as plain data, from results.json:
+    {"title", "blocks": [{"heading", "text": [...], "headers": [...], "rows": [[...]]}]}.
+    Every number is already in the output units named in the headers."""
+    trace = doc.get("traceability") or {}
+    units = doc["units"]
+    F = units["force"]
+    blocks = []
+    for load, weight in trace.get("seismic_weight", {}).items():
+        rows = [[item["label"], item["calculation"], item["weight"]] for item in weight["items"]]
+        rows.append(["total", "Σ of the items above", weight["total"]])
+        rows.append(["used in the analysis", f"difference {weight['difference']:.3g} {F}", weight["used_in_analysis"]])
+        blocks.append({"heading": f"Seismic weight, load {load}",
+                       "text": ["Area weight over each area less the openings, line weights × their length, point "
+                                "weights as given."],
+                       "headers": ["item", "calculation", f"weight ({F})"], "rows": rows})
+        fpx = weight.get("fpx")
+        if fpx:
+            rows = [[f"Eq. {eq}", e["formula"], e["numbers"], e["value"]] for eq, e in fpx["equations"].items()]
+            blocks.append({"heading": f"Diaphragm force Fpx, load {load} ({fpx['clause']})",
+                           "text": [f"Fpx = {fpx['Fpx']:.6g} {F}: Eq. {fpx['governing']} governs (12.10-1 bounded "
+                                    "below by 12.10-2 and above by 12.10-3)."],
+                           "headers": ["equation", "formula", "numbers", f"value ({F})"], "rows": rows})
+    walls = trace.get("wall_stiffness", {})
+    if walls:
+        rows = []
+        for wall_id, wall in walls.items():
+            unit = wall["flexibility_unit"]
+            for term, value in wall["terms"].items():
+                rows.append([wall_id, term, value["calculation"], value["value"], ""])
+            rows.append([wall_id, "total", f"k = 1/Σ = 1/{wall['flexibility_total']:.6g} {unit}",
+                         wall["flexibility_total"], wall["k"]])
+        first = next(iter(walls.values()))
+        blocks.append({"heading": "Wall stiffness, term by term",
+                       "text": ["Deflection per unit force of each term (the plan's inputs in one consistent set of "
+                                "units), their sum and k = 1/Σ; formulas in the wall stiffness table."],
+                       "headers": ["wall", "term", "calculation", f"flexibility ({first['flexibility_unit']})",
+                                   f"k ({first['k_unit']})"], "rows": rows})
+    for span in trace.get("worked_spans", []):
+        u = span["units"]
+        head = f"Worked span {span['span']} ({span['from']:g}–{span['to']:g} {u['length']}), case {span['case']}"
+        text = [f"Flexible method, {span['why']}. {span['load']['how']}. {span['load']['note']}."]
+        pieces = [[p["from"], p["to"], p["diaphragm_length"], p["w_start"], p["w_end"]] for p in span["load"]["pieces"]]
+        pieces += [[p["at"], p["at"], "point load", p["P"], ""] for p in span["load"]["points_in_span"]]
+        blocks.append({"heading": head + ": load on the span", "text": text,
+                       "headers": [f"from ({u['length']})", f"to ({u['length']})", f"ℓ ({u['length']})",
+                                   f"w start ({u['line_load']})", f"w end ({u['line_load']})"], "rows": pieces})
+        blocks.append({"heading": head + ": hand calculation", "text": [],
+                       "headers": ["quantity", "formula", "numbers", "value", "unit"],
+                       "rows": [[s["quantity"], s["formula"], s["numbers"], s["value"], s["unit"]]
+                                for s in span["steps"]]})
+        blocks.append({"heading": head + ": check against the flexible results", "text": [],
+                       "headers": ["quantity", "hand", "program", "difference", "relative", "unit"],
+                       "rows": [[c["quantity"], c["hand"], c["program"], c["difference"], c["relative_difference"],
+                                 c["unit"]] for c in span["check_against_flexible"]]})
+    for note in trace.get("notes", []):
+        blocks.append({"heading": "Note", "text": [note], "headers": [], "rows": []})
+    return {"title": "Loads and stiffness, traced", "blocks": blocks}

@@ -131,3 +131,50 @@ def test_worked_span_uniform_formulas():
     assert steps["v_left"]["value"] == pytest.approx(1.0, rel=1e-12)
     assert steps["T = C"]["value"] == pytest.approx(25.0, rel=1e-6)
     assert all(abs(c["relative_difference"]) <= 1e-3 for c in span["check_against_flexible"])
+
+
+def _text_boxes(fig):
+    """(text, window extent) of every text drawn in the plan axes, after the layout the
+    report uses (save() calls tight_layout)."""
+    fig.tight_layout()
+    renderer = fig.canvas.get_renderer()
+    fig.draw(renderer)
+    ax = fig.axes[0]
+    return [(t.get_text(), t.get_window_extent(renderer)) for t in ax.texts if t.get_text()]
+
+
+def _overlaps(boxes):
+    return [(a, b) for i, (a, box_a) in enumerate(boxes) for b, box_b in boxes[:i]
+            if box_a.overlaps(box_b)]
+
+
+def test_demo_plan_figure_shows_loads_dimensions_and_no_label_collides():
+    """The demo plan drawing carries the loads with their values, CM and CR, dimension
+    strings (grid spacing 50, 50, 60 ft; overall 160 × 90 ft from the demo outline) and a
+    scale bar; no two labels overlap (renderer extents)."""
+    from planshear.figures import plan_figure
+
+    text = resources.files("planshear").joinpath("data/demo.toml").read_text(encoding="utf-8")
+    plan = parse_plan(text, "demo.toml")
+    doc = analyze(plan, semirigid=False).to_json()
+    boxes = _text_boxes(plan_figure(doc, plan))
+    texts = [t for t, _ in boxes]
+    for expected in ("CM (E)", "CR", "E: 18 psf", "E: 0.2 kip/ft", "E: 6 kip", "W+x: 0.28 kip/ft",
+                     "W+y: 0.28 kip/ft", "160 ft", "90 ft", "60 ft", "40 ft", "scale (ft)", "W1", "W9"):
+        assert expected in texts, expected
+    assert texts.count("50 ft") == 3  # 1–2, 2–3 and A–B
+    assert _overlaps(boxes) == []
+
+
+def test_plan_figure_separates_coinciding_labels():
+    """A symmetric rectangle: the center of mass and of rigidity coincide (both at the
+    middle by symmetry), yet their labels do not overlap."""
+    from planshear.figures import plan_figure
+
+    plan = parse_plan(rectangle_plan(walls=end_walls()), "symmetric.toml")
+    doc = analyze(plan, semirigid=False).to_json()
+    assert doc["plan"]["loads"]["E"]["center_of_mass"] == pytest.approx([50.0, 25.0])
+    assert doc["assumptions"]["rigid"]["center_of_rigidity"] == pytest.approx([50.0, 25.0])
+    boxes = _text_boxes(plan_figure(doc, plan))
+    assert {"CM (E)", "CR"} <= {t for t, _ in boxes}
+    assert _overlaps(boxes) == []
