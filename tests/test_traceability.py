@@ -178,3 +178,25 @@ def test_plan_figure_separates_coinciding_labels():
     boxes = _text_boxes(plan_figure(doc, plan))
     assert {"CM (E)", "CR"} <= {t for t, _ in boxes}
     assert _overlaps(boxes) == []
+
+
+def test_traced_report_section(demo_doc):
+    """The report's "Loads and stiffness, traced" section carries every traced number:
+    one row per weight item (+ total and used), the three Fpx equations, every wall term,
+    and per worked span the load, the steps and the check, in HTML and in the PDF text."""
+    from planshear.postprocess.traceability import traced_section
+    from planshear.report import _traced
+
+    data = traced_section(demo_doc)
+    trace = demo_doc["traceability"]
+    by_heading = {b["heading"]: b for b in data["blocks"]}
+    assert len(by_heading["Seismic weight, load E"]["rows"]) == len(trace["seismic_weight"]["E"]["items"]) + 2
+    assert len(by_heading["Diaphragm force Fpx, load E (ASCE 7-16 §12.10.1.1)"]["rows"]) == 3
+    terms = sum(len(w["terms"]) + 1 for w in trace["wall_stiffness"].values())
+    assert len(by_heading["Wall stiffness, term by term"]["rows"]) == terms
+    for span in trace["worked_spans"]:
+        steps = next(b for h, b in by_heading.items() if span["span"] in h and h.endswith("hand calculation"))
+        assert [r[0] for r in steps["rows"]] == [s["quantity"] for s in span["steps"]]
+    html, (title, lines) = _traced(demo_doc)
+    assert title == "Loads and stiffness, traced" and "Loads and stiffness, traced" in html
+    assert any("(12000 − 144) ft² × 0.018 kip/ft²" in line for line in lines)
