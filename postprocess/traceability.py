@@ -214,8 +214,9 @@ def _worked_span(plan: Plan, case: LoadCase, flexible: MethodResult, supports, i
     uniform = None
     if len(pieces) == 1 and abs(w0[0] - w1[0]) <= 1e-9 * abs(w0[0]) and not len(inside):
         uniform = float(w0[0])
-    b_left = _cut(plan.region, s_l + 1e-6 * size, s_index)
-    b_right = _cut(plan.region, s_r - 1e-6 * size, s_index)
+    # b just beside each line (1e-7 of the plan size, as the beam analogy reads it).
+    b_left = _cut(plan.region, s_l + 1e-7 * size, s_index)
+    b_right = _cut(plan.region, s_r - 1e-7 * size, s_index)
     depth = _cut(Polygon(plan.outline), float(s[km]), s_index)
     result = flexible.cases[case.name]
     program = {
