@@ -541,7 +541,7 @@ def _worked_span_to_json(span, units: OutputUnits) -> dict:
     pieces = [{"from": _r(l_out(a)), "to": _r(l_out(b)), "diaphragm_length": _r(l_out(ell)),
                "w_start": _r(q_out(w0)), "w_end": _r(q_out(w1))} for a, b, ell, w0, w1 in span.pieces]
     if span.force_ratio is not None:
-        how = (f"w(s) = (F/W) × (area weight × diaphragm length ℓ(s) across the load + weights across the load, "
+        how = (f"w(s) = (F/W) × (area weight × diaphragm length l(s) across the load (openings excluded) + weights across the load, "
                f"point weights over their footprint), F/W = {n(span.force_ratio)} (case force / seismic weight)")
     else:
         how = "w(s) = wind intensity on the windward and leeward faces, spread across the depth of the diaphragm"

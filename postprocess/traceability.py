@@ -364,7 +364,7 @@ def traced_section(doc: dict) -> dict:
         pieces = [[p["from"], p["to"], p["diaphragm_length"], p["w_start"], p["w_end"]] for p in span["load"]["pieces"]]
         pieces += [[p["at"], p["at"], "point load", p["P"], ""] for p in span["load"]["points_in_span"]]
         blocks.append({"heading": head + ": load on the span", "text": text,
-                       "headers": [f"from ({u['length']})", f"to ({u['length']})", f"ℓ ({u['length']})",
+                       "headers": [f"from ({u['length']})", f"to ({u['length']})", f"l, across ({u['length']})",
                                    f"w start ({u['line_load']})", f"w end ({u['line_load']})"], "rows": pieces})
         blocks.append({"heading": head + ": hand calculation", "text": [],
                        "headers": ["quantity", "formula", "numbers", "value", "unit"],

@@ -93,12 +93,13 @@ PLAN = textwrap.dedent(
 )
 
 
-@pytest.fixture(scope="module", params=[1, 2], ids=["tri3", "tri6"])
+@pytest.fixture(scope="module", params=[(1, "triangle"), (2, "triangle"), (2, "quad")], ids=["tri3", "tri6", "quad9"])
 def written(request, tmp_path_factory):
-    """The plan analyzed once per element order and written in both unit sets."""
-    plan = parse_plan(PLAN.replace("ORDER", str(request.param)), "mesh_export.toml")
-    results = analyze(plan)
-    folder = tmp_path_factory.mktemp(f"mesh{request.param}")
+    """The plan analyzed once per element type and written in both unit sets."""
+    order, element = request.param
+    text = PLAN.replace("ORDER", f'{order}\nelement = "{element}"')
+    results = analyze(parse_plan(text, "mesh_export.toml"))
+    folder = tmp_path_factory.mktemp(f"mesh{order}{element}")
     results.write(folder / "si", report=False, mesh_units="si")
     results.write(folder / "plan", report=False, mesh_units="plan")
     return folder, results
@@ -113,6 +114,27 @@ def _field(data: dict, prefix: str):
 
 # Independent elements: plane stress (orthotropic, per unit width), straight bars and
 # distributed springs, each with its own shape functions and Gauss rule.
+
+#: Quadrilateral nodes in the VTK/meshio order (corners, mid-sides, centre) on [−1, 1]².
+_QUAD9 = np.array([[-1, -1], [1, -1], [1, 1], [-1, 1], [0, -1], [1, 0], [0, 1], [-1, 0], [0, 0]], dtype=float)
+
+
+def _quad_shape(xi: float, eta: float):
+    """Shape functions and derivatives of the 9-node Lagrange quadrilateral: products of
+    the 1-D quadratics through −1, 0, 1 (Zienkiewicz & Taylor, The Finite Element Method,
+    Vol. 1, 6th ed., 2005, §6.4)."""
+    def lagrange(x, node):
+        values = {-1.0: (0.5 * x * (x - 1), x - 0.5), 0.0: (1 - x * x, -2 * x), 1.0: (0.5 * x * (x + 1), x + 0.5)}
+        return values[float(node)]
+
+    n, d_xi, d_eta = [], [], []
+    for a, b in _QUAD9:
+        (la, da), (lb, db) = lagrange(xi, a), lagrange(eta, b)
+        n.append(la * lb)
+        d_xi.append(da * lb)
+        d_eta.append(la * db)
+    return np.array(n), np.array([d_xi, d_eta])
+
 
 def _tri_shape(kind: str, xi: float, eta: float):
     """Shape functions and derivatives d/dξ, d/dη of the 3- and 6-node triangles
@@ -130,8 +152,8 @@ def _membrane(kind, xy, Etx, Ety, nu, Gt):
     """Element matrices (m, 2n, 2n) = ∫ Bᵀ D B dA; D is the orthotropic plane-stress
     matrix Q of R. M. Jones, *Mechanics of Composite Materials*, 2nd ed., 1999, Eq. 2.61
     (Q11 = E1/(1−ν12ν21), Q12 = ν12E2/(1−ν12ν21), Q22 = E2/(1−ν12ν21), Q66 = G12), here
-    with rigidities per unit width. Three-point rule (exact for the 6-node triangle's
-    quadratic integrand on straight sides)."""
+    with rigidities per unit width. Full integration: three points on triangles, 3 × 3 on
+    the 9-node quadrilateral."""
     nu_yx = nu * Ety / Etx
     f = 1.0 / (1.0 - nu * nu_yx)
     D = np.zeros((len(xy), 3, 3))
@@ -139,15 +161,20 @@ def _membrane(kind, xy, Etx, Ety, nu, Gt):
     D[:, 0, 1] = D[:, 1, 0] = f * nu * Ety
     n_nodes = xy.shape[1]
     K = np.zeros((len(xy), 2 * n_nodes, 2 * n_nodes))
-    for xi, eta in ((1 / 6, 1 / 6), (2 / 3, 1 / 6), (1 / 6, 2 / 3)):  # weights 1/6 each
-        _, dn = _tri_shape(kind, xi, eta)
+    if kind == "quad9":  # 3 × 3 Gauss rule
+        g, w = np.polynomial.legendre.leggauss(3)
+        rule = [(a, b, wa * wb, _quad_shape(a, b)[1]) for a, wa in zip(g, w, strict=True)
+                for b, wb in zip(g, w, strict=True)]
+    else:  # three points, weights 1/6 each (exact for the 6-node triangle's quadratic integrand)
+        rule = [(a, b, 1 / 6, _tri_shape(kind, a, b)[1]) for a, b in ((1 / 6, 1 / 6), (2 / 3, 1 / 6), (1 / 6, 2 / 3))]
+    for _, _, weight, dn in rule:
         J = np.einsum("an,mnj->maj", dn, xy)  # (m, 2, 2): d(x, y)/d(ξ, η)
         det = J[:, 0, 0] * J[:, 1, 1] - J[:, 0, 1] * J[:, 1, 0]
         dxy = np.linalg.solve(J, np.broadcast_to(dn, (len(xy),) + dn.shape))  # (m, 2, n): d/dx, d/dy
         B = np.zeros((len(xy), 3, 2 * n_nodes))
         B[:, 0, 0::2], B[:, 1, 1::2] = dxy[:, 0], dxy[:, 1]
         B[:, 2, 0::2], B[:, 2, 1::2] = dxy[:, 1], dxy[:, 0]
-        K += np.einsum("mai,mab,mbj->mij", B, D, B) * (det / 6.0)[:, None, None]
+        K += np.einsum("mai,mab,mbj->mij", B, D, B) * (det * weight)[:, None, None]
     return K
 
 
@@ -193,7 +220,7 @@ def test_exported_model_re_solves_to_the_exported_displacements(written):
     xy = mesh.points[:, :2]
     n_dofs = 2 * len(xy)
     membrane, lines = mesh.cells[0], mesh.cells[1]
-    assert membrane.type in ("triangle", "triangle6") and lines.type in ("line", "line3")
+    assert membrane.type in ("triangle", "triangle6", "quad9") and lines.type in ("line", "line3")
     cd = mesh.cell_data
     K = _assemble(n_dofs, membrane.data, _membrane(
         membrane.type, xy[membrane.data], cd["Et_x (N/m)"][0], cd["Et_y (N/m)"][0], cd["nu_xy"][0], cd["Gt (N/m)"][0]))
