@@ -586,7 +586,8 @@ def _worked_span_to_json(span, units: OutputUnits) -> dict:
                 q_out(span.program["unit_shear_left"]), units.line_force),
         compare(f"unit shear at line {span.right} (left side)", q_out(span.unit_shear_right),
                 q_out(span.program["unit_shear_right"]), units.line_force),
-        compare(f"chord force at {n(l_out(span.m_max_at))} {L}", f_out(span.chord), f_out(span.program["chord"]), F),
+        compare(f"chord force M/d at {n(l_out(span.program['chord_at']))} {L} (the program's station nearest to M_max)",
+                f_out(span.program["hand_chord_at"]), f_out(span.program["chord"]), F),
     ] + [compare(f"line {name} force (Σ of the span reactions beside it)", f_out(hand), f_out(program), F)
          for name, (hand, program) in span.line_check.items()]
     return {

@@ -219,10 +219,14 @@ def _worked_span(plan: Plan, case: LoadCase, flexible: MethodResult, supports, i
     b_right = _cut(plan.region, s_r - 1e-7 * size, s_index)
     depth = _cut(Polygon(plan.outline), float(s[km]), s_index)
     result = flexible.cases[case.name]
+    chord_at, chord = _program_chord(plan, result, float(s[km]), s_l, s_r, s_index)
     program = {
         "unit_shear_left": abs(result.lines[left].unit_shear_right),
         "unit_shear_right": abs(result.lines[right].unit_shear_left),
-        "chord": _program_chord(plan, result, float(s[km]), s_index),
+        "chord_at": chord_at,
+        "chord": chord,
+        # The hand M/d at the program's station (M interpolated on the fine grid).
+        "hand_chord_at": abs(float(np.interp(chord_at, s, M))) / _cut(Polygon(plan.outline), chord_at, s_index),
     }
     hand_lines = _hand_line_forces(plan, case, supports, applied)
     program_lines = result.extra.get("line_forces", {})
@@ -268,22 +272,28 @@ def _hand_line_forces(plan: Plan, case: LoadCase, supports, applied) -> dict[str
             right_share = float(np.sum(F * (x - s0)) / span)
             forces[supports[j - 1][0]] += float(F.sum()) - right_share
             forces[supports[j][0]] += right_share
-    sign = float(case.direction @ np.eye(2)[1 - s_index])
-    return {name: sign * f for name, f in forces.items()}
+    return forces  # signed as the program's line forces: ``applied`` carries the case's sign
 
 
-def _program_chord(plan: Plan, result, s: float, s_index: int) -> float:
-    """Largest |chord force| the flexible method reports on the outline edges at station s."""
-    best = 0.0
+def _program_chord(plan: Plan, result, s: float, s_lo: float, s_hi: float, s_index: int) -> tuple[float, float]:
+    """The flexible method's chord force on the outline edges at its own station nearest
+    to s within [s_lo, s_hi]: (station m, largest |force| there N). Its own station, so that
+    the comparison is not blurred by interpolating the sampled diagram."""
     outline = plan.outline
+    found = []
     for name, chord in result.chords.items():
         i = int(name.split()[1]) - 1
         a, b = outline[i], outline[(i + 1) % len(outline)]
         direction = np.sign(b[s_index] - a[s_index]) or 1.0
-        along = (s - a[s_index]) * direction
-        if len(chord.stations) and chord.stations.min() - 1e-9 <= along <= chord.stations.max() + 1e-9:
-            best = max(best, abs(float(np.interp(along, chord.stations, chord.force))))
-    return best
+        stations = a[s_index] + chord.stations * direction
+        keep = (stations >= s_lo) & (stations <= s_hi) & (chord.force != 0)
+        if np.any(keep):
+            k = int(np.argmin(np.abs(stations[keep] - s)))
+            found.append((float(stations[keep][k]), abs(float(chord.force[keep][k]))))
+    if not found:
+        return s, 0.0
+    near = min(abs(f[0] - s) for f in found)
+    return max((f for f in found if abs(f[0] - s) <= near + 1e-12), key=lambda f: f[1])
 
 
 def build_traceability(plan: Plan, cases, flexible: MethodResult | None) -> Traceability:
