@@ -303,3 +303,18 @@ def test_unknown_mesh_units_are_refused(written, tmp_path, capsys):
     with pytest.raises(SystemExit):
         main(["demo", "--out", str(tmp_path / "x"), "--mesh-units", "imperial"])
     assert "invalid choice" in capsys.readouterr().err
+
+
+def test_cli_writes_plan_units(tmp_path):
+    """planshear run --mesh-units plan: the files carry plan units (ft coordinates, in
+    displacements); the default is SI."""
+    plan_file = tmp_path / "plan.toml"
+    plan_file.write_text(PLAN.replace("ORDER", "1"), encoding="utf-8")
+    assert main(["run", str(plan_file), "--out", str(tmp_path / "plan"), "--quiet", "--no-report",
+                 "--mesh-units", "plan"]) == 0
+    assert main(["run", str(plan_file), "--out", str(tmp_path / "si"), "--quiet", "--no-report"]) == 0
+    in_plan = meshio.read(tmp_path / "plan" / "mesh.vtu")
+    in_si = meshio.read(tmp_path / "si" / "mesh.vtu")
+    assert "u[E+x] (in)" in in_plan.point_data and "u[E+x] (m)" in in_si.point_data
+    assert in_plan.points[:, :2].max() == pytest.approx(60.0)  # the outline's 60 ft
+    assert in_si.points[:, :2].max() == pytest.approx(60.0 * FT)
