@@ -487,26 +487,28 @@ def traceability_to_json(trace, units: OutputUnits) -> dict:
     flex_unit, flex_factor = f"{c_len}/{c_force}", cl / cf
     walls = {}
     for wall in trace.walls:
-        v = {key: value / kinds[key][0] for key, value in wall.inputs.items()}
+        v = {key: value / kinds[key][0] for key, value in wall.inputs.items() if key in kinds}
         numbers = {}
-        if "E" in v:
+        if {"E", "G", "t", "h", "d"} <= set(v):
             cantilever = "3EI" in wall.formula
             inertia = v["t"] * v["d"] ** 3 / 12
             numbers["flexure"] = (f"h³/({3 if cantilever else 12}·E·I), I = t·d³/12 = {n(inertia)} {c_len}⁴: "
                                   f"{n(v['h'])}³/({3 if cantilever else 12} × {n(v['E'])} × {n(inertia)})")
             numbers["shear"] = f"1.2·h/(A·G), A = t·d: 1.2 × {n(v['h'])}/({n(v['t'])} × {n(v['d'])} × {n(v['G'])})"
-        elif "Ga" in v:
+        elif {"Ga", "h", "b", "EA"} <= set(v):
             numbers["bending"] = f"2h³/(3·EA·b²): 2 × {n(v['h'])}³/(3 × {n(v['EA'])} × {n(v['b'])}²)"
             numbers["shear"] = f"h/(Ga·b): {n(v['h'])}/({n(v['Ga'])} × {n(v['b'])})"
             if "k_hd" in v:
                 numbers["holdown"] = f"h²/(k_hd·b²): {n(v['h'])}²/({n(v['k_hd'])} × {n(v['b'])}²)"
-        else:
+        elif "k" in v:
             numbers["given"] = f"1/k: 1/{n(v['k'])}"
         total = sum(wall.terms.values())
         walls[wall.id] = {
             "line": wall.line, "formula": wall.formula,
             "inputs": {key: {"value": _r(value), "unit": kinds[key][1]} for key, value in v.items()},
-            "terms": {key: {"calculation": numbers.get(key, key), "value": _r(value / flex_factor)}
+            # A wall model that records no inputs still shows its terms, without the numbers.
+            "terms": {key: {"calculation": numbers.get(key, f"{key} (inputs not recorded)"),
+                            "value": _r(value / flex_factor)}
                       for key, value in wall.terms.items()},
             "flexibility_total": _r(total / flex_factor), "flexibility_unit": flex_unit,
             "k": _r(1.0 / total * flex_factor), "k_unit": f"{c_force}/{c_len}",
