@@ -235,3 +235,38 @@ def test_every_span_of_every_flexible_case_checks(example):
                 assert hand == pytest.approx(program, rel=1e-12, abs=1e-9 * case.force)
             count += 1
     assert count >= 6  # both directions, wind both ways
+
+
+def test_weight_breakdown_with_a_zone_weight_and_openings():
+    """A 100 × 50 ft plan, a 20 × 50 ft zone at 40 psf (its own area weight), 20 psf
+    elsewhere, a 10 × 10 ft opening in each part. By hand: zone (1000 − 100) ft² × 40 psf
+    = 36 kip; rest (4000 − 100) ft² × 20 psf = 78 kip; total 114 kip."""
+    extra = """
+[[diaphragm.zone]]
+name = "heavy"
+polygon = [[0, 0], [20, 0], [20, 50], [0, 50]]
+material = { kind = "wood-panel", Ga = "20 kip/in" }
+"""
+    load = """
+[[load]]
+name = "E"
+kind = "seismic"
+area_weight = "20 psf"
+zone_area_weight = { heavy = "40 psf" }
+total = "50 kip"
+directions = ["x", "y"]
+"""
+    text = rectangle_plan(walls=end_walls(), extra=extra, load=load).replace(
+        'chord_EA = "40000 kip"',
+        'chord_EA = "40000 kip"\nopenings = [[[5, 20], [15, 20], [15, 30], [5, 30]], [[60, 20], [70, 20], [70, 30], [60, 30]]]')
+    doc = analyze(parse_plan(text, "zones.toml"), semirigid=False).to_json()
+    weight = doc["traceability"]["seismic_weight"]["E"]
+    by_label = {item["label"]: item for item in weight["items"]}
+    zone = by_label["zone heavy"]
+    rest = by_label["diaphragm outside the zones with their own weight"]
+    assert (zone["gross_area"], zone["net_area"]) == (pytest.approx(1000.0), pytest.approx(900.0))
+    assert [d["area"] for d in zone["deductions"]] == [pytest.approx(100.0)]
+    assert (rest["gross_area"], rest["net_area"]) == (pytest.approx(4000.0), pytest.approx(3900.0))
+    assert zone["weight"] == pytest.approx(36.0, rel=1e-9) and rest["weight"] == pytest.approx(78.0, rel=1e-9)
+    assert weight["total"] == pytest.approx(114.0, rel=1e-9) == weight["used_in_analysis"]
+    assert "fpx" not in weight
