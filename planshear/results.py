@@ -579,9 +579,9 @@ def _worked_span_to_json(span, units: OutputUnits) -> dict:
 
     def compare(name, hand, program, unit):
         diff = hand - program
-        rel = diff / program if program else float("inf") if diff else 0.0
+        rel = diff / program if program else None if diff else 0.0  # None: not defined (program value 0)
         return {"quantity": name, "hand": _r(hand), "program": _r(program), "difference": _r(diff),
-                "relative_difference": float(f"{rel:.2e}"), "unit": unit}
+                "relative_difference": None if rel is None else float(f"{rel:.2e}"), "unit": unit}
 
     checks = [
         compare(f"unit shear at line {span.left} (right side)", q_out(span.unit_shear_left),

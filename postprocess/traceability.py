@@ -226,16 +226,22 @@ def _worked_span(plan: Plan, case: LoadCase, flexible: MethodResult, supports, i
         "chord_at": chord_at,
         "chord": chord,
         # The hand M/d at the program's station (M interpolated on the fine grid).
-        "hand_chord_at": abs(float(np.interp(chord_at, s, M))) / _cut(Polygon(plan.outline), chord_at, s_index),
+        "hand_chord_at": _per(abs(float(np.interp(chord_at, s, M))), _cut(Polygon(plan.outline), chord_at, s_index), tol),
     }
     hand_lines = _hand_line_forces(plan, case, supports, applied)
     program_lines = result.extra.get("line_forces", {})
     return WorkedSpan(
         case.axis, case.name, left, right, s_l, s_r, force_ratio, np.column_stack([a, b, length, w0, w1]), inside,
         on_lines, uniform, W, centroid, R_l, R_r, float(abs(V[kv])), float(s[kv]), float(abs(M[km])), float(s[km]),
-        b_left, b_right, depth, abs(R_l) / b_left, abs(R_r) / b_right, float(abs(M[km])) / depth, program,
-        {name: (hand_lines[name], float(program_lines.get(name, np.nan))) for name in (left, right)},
+        b_left, b_right, depth, _per(abs(R_l), b_left, tol), _per(abs(R_r), b_right, tol),
+        _per(float(abs(M[km])), depth, tol), program,
+        {name: (hand_lines[name], float(program_lines[name])) for name in (left, right) if name in program_lines},
     )
+
+
+def _per(value: float, length: float, tol: float) -> float:
+    """value / length, 0 where there is no length (no diaphragm there): never inf in the JSON."""
+    return value / length if length > tol else 0.0
 
 
 def _hand_line_forces(plan: Plan, case: LoadCase, supports, applied) -> dict[str, float]:
