@@ -15,6 +15,7 @@ from importlib import resources
 from pathlib import Path
 
 from .errors import AnalysisError, EquilibriumError, PlanError
+from .mesh_export import MESH_UNIT_CHOICES
 from .plan import load_plan, parse_plan
 from .run import CAUTION, Results, analyze, plan_summary
 
@@ -39,11 +40,15 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--format", choices=("text", "json"), default="text")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
     run.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
+    run.add_argument("--mesh-units", choices=MESH_UNIT_CHOICES, default="si",
+                     help="units of the mesh files: si (N, m; default, for a finite-element program) or plan "
+                          "(the units of results.json, e.g. ft, in, kip)")
     demo = sub.add_parser("demo", help="analyze the built-in demo plan")
     demo.add_argument("--out", default="planshear-demo", help="output folder (default: planshear-demo)")
     demo.add_argument("--format", choices=("text", "json"), default="text")
     demo.add_argument("--quiet", action="store_true")
     demo.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
+    demo.add_argument("--mesh-units", choices=MESH_UNIT_CHOICES, default="si", help="units of the mesh files: si or plan")
     imp = sub.add_parser("import", help="read a plan drawing (DXF) and write a plan file with placeholders to fill in")
     imp.add_argument("drawing", help="plan drawing (.dxf)")
     imp.add_argument("--out", required=True, help="plan file to write (.toml); never replaced without --force")
@@ -102,7 +107,7 @@ def main(argv: list[str] | None = None) -> int:
         progress = _progress_printer(quiet=args.quiet or args.format == "json")
         results = analyze(plan, progress=progress)
         progress("writing results, report, figures and mesh files")
-        results.write(out, report=not args.no_report)
+        results.write(out, report=not args.no_report, mesh_units=args.mesh_units)
         progress("done")
         if args.format == "json":
             print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))

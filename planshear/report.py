@@ -577,6 +577,25 @@ def _irregularity_lines(headers: list[str], rows: list[list]) -> list[str]:
     return lines
 
 
+def _traced(doc: dict) -> tuple[str, list[str]]:
+    """The "Loads and stiffness, traced" section (postprocess/traceability.py) as HTML and
+    as text lines for the PDF."""
+    from .postprocess.traceability import traced_section
+
+    data = traced_section(doc)
+    html_parts, lines = [], []
+    for block in data["blocks"]:
+        html_parts.append(f"<h3>{_esc(block['heading'])}</h3>" + "".join(f"<p>{_esc(t)}</p>" for t in block["text"]))
+        lines += [block["heading"]] + [w for t in block["text"] for w in _wrap(t, 110)]
+        if block["rows"]:
+            html_parts.append(_table(block["headers"], block["rows"], "traced"))
+            # One wrapped line per row: calculations are too long for fixed columns.
+            lines += _wrap(" | ".join(block["headers"]), 110)
+            lines += [w for row in block["rows"] for w in _wrap("  " + " | ".join(_plain(c) for c in row), 110)]
+        lines.append("")
+    return f"<section><h2>{_esc(data['title'])}</h2>{''.join(html_parts)}</section>", [data["title"], lines]
+
+
 def write_review_package(folder: Path, results, doc: dict) -> list[str]:
     """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``."""
     written = write_tables(folder, doc)
@@ -617,6 +636,7 @@ def write_review_package(folder: Path, results, doc: dict) -> list[str]:
                 sections.append((title, _irregularity_lines(headers, rows)))
                 continue
             sections.append((title, _plain_rows(headers, rows)))
+        sections.append(tuple(_traced(doc)[1]))
         _text_pages(pdf, sections)
         figures = _figures(doc, results, folder, pdf)
         _text_pages(pdf, [(
@@ -735,6 +755,7 @@ def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]], checks_
         section("Plan drawing", figs(figures["plan"])),
         section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
         section("Loads and load cases", tab("loads") + tab("cases")),
+        _traced(doc)[0],
         section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")
                 + "<p>The same check by beam theory on the flexible method's simple spans (chord bending and "
                 "sheathing shear; no finite-element model):</p>" + tab("span_deflection")),

@@ -23,6 +23,7 @@ __all__ = [
     "checks_to_json",
     "splices_to_json",
     "comparison_to_json",
+    "traceability_to_json",
 ]
 
 
@@ -503,3 +504,187 @@ def splices_to_json(splices, units: OutputUnits) -> list[dict]:
     return [{"name": s.name, "at": [_r(units.length_out(v)) for v in s.at], "member": s.member,
              "tension": _governing(s.tension, units), "compression": _governing(s.compression, units)}
             for s in splices]
+
+
+def traceability_to_json(trace, units: OutputUnits) -> dict:
+    """The traced numbers (planshear.postprocess.traceability) in output units, each step as
+    {quantity, formula, numbers, value, unit} so that a reviewer can repeat it."""
+    F, L = units.force, units.length
+    f_out, l_out, q_out = units.force_out, units.length_out, units.line_force_out
+    area_unit, pressure_unit = f"{L}²", f"{F}/{L}²"
+
+    def area(v):
+        return l_out(l_out(v))
+
+    def pressure(v):
+        return f_out(v) * units.length_factor**2
+
+    def n(v):
+        return f"{v:.5g}"
+
+    weights = {}
+    for b in trace.weights:
+        items = []
+        for item in b.items:
+            entry = {"kind": item.kind, "label": item.label, "weight": _r(f_out(item.weight))}
+            if item.kind == "area":
+                less = "".join(f" − {n(area(a))}" for _, a in item.deductions)
+                entry |= {"gross_area": _r(area(item.gross)), "deductions": [
+                    {"opening": name, "area": _r(area(a))} for name, a in item.deductions],
+                    "net_area": _r(area(item.quantity)), "area_weight": _r(pressure(item.intensity)),
+                    "calculation": f"({n(area(item.gross))}{less}) {area_unit} × {n(pressure(item.intensity))} "
+                                   f"{pressure_unit} = {n(f_out(item.weight))} {F}"}
+            elif item.kind == "line":
+                entry |= {"length": _r(l_out(item.quantity)), "line_weight": _r(q_out(item.intensity)),
+                          "calculation": f"{n(l_out(item.quantity))} {L} × {n(q_out(item.intensity))} {F}/{L} = "
+                                         f"{n(f_out(item.weight))} {F}"}
+            else:
+                entry["calculation"] = f"{n(f_out(item.weight))} {F} as given"
+            items.append(entry)
+        out = {"items": items, "total": _r(f_out(b.total)), "used_in_analysis": _r(f_out(b.used)),
+               "difference": _r(f_out(b.total - b.used)),
+               "units": {"area": area_unit, "area_weight": pressure_unit, "line_weight": units.line_force, "weight": F}}
+        if b.fpx is not None:
+            SDS, Ie, ratio = b.fpx_inputs
+            w = f_out(b.used)
+            out["fpx"] = {
+                "clause": "ASCE 7-16 §12.10.1.1", "wpx": _r(w), "SDS": SDS, "Ie": Ie, "story_force_ratio": ratio,
+                "equations": {
+                    "12.10-1": {"formula": "Fpx = (ΣFi/Σwi)·wpx", "numbers": f"{n(ratio)} × {n(w)}",
+                                "value": _r(f_out(b.fpx.eq_12_10_1))},
+                    "12.10-2": {"formula": "Fpx,min = 0.2·SDS·Ie·wpx", "numbers": f"0.2 × {n(SDS)} × {n(Ie)} × {n(w)}",
+                                "value": _r(f_out(b.fpx.eq_12_10_2))},
+                    "12.10-3": {"formula": "Fpx,max = 0.4·SDS·Ie·wpx", "numbers": f"0.4 × {n(SDS)} × {n(Ie)} × {n(w)}",
+                                "value": _r(f_out(b.fpx.eq_12_10_3))},
+                },
+                "governing": b.fpx.governing, "Fpx": _r(f_out(b.fpx.value)), "unit": F,
+            }
+        weights[b.load] = out
+
+    # Wall terms in one consistent set a calculator takes directly: kip and in, or kN and mm.
+    imperial = units.force == "kip"
+    cf, cl = (units.force_factor, 0.0254) if imperial else (1000.0, 0.001)
+    c_force, c_len = ("kip", "in") if imperial else ("kN", "mm")
+    kinds = {"E": (cf / cl**2, f"{c_force}/{c_len}²"), "G": (cf / cl**2, f"{c_force}/{c_len}²"),
+             "t": (cl, c_len), "h": (cl, c_len), "d": (cl, c_len), "b": (cl, c_len), "EA": (cf, c_force),
+             "Ga": (cf / cl, f"{c_force}/{c_len}"), "k_hd": (cf / cl, f"{c_force}/{c_len}"),
+             "k": (cf / cl, f"{c_force}/{c_len}")}
+    flex_unit, flex_factor = f"{c_len}/{c_force}", cl / cf
+    walls = {}
+    for wall in trace.walls:
+        v = {key: value / kinds[key][0] for key, value in wall.inputs.items() if key in kinds}
+        numbers = {}
+        if {"E", "G", "t", "h", "d"} <= set(v):
+            cantilever = "3EI" in wall.formula
+            inertia = v["t"] * v["d"] ** 3 / 12
+            numbers["flexure"] = (f"h³/({3 if cantilever else 12}·E·I), I = t·d³/12 = {n(inertia)} {c_len}⁴: "
+                                  f"{n(v['h'])}³/({3 if cantilever else 12} × {n(v['E'])} × {n(inertia)})")
+            numbers["shear"] = f"1.2·h/(A·G), A = t·d: 1.2 × {n(v['h'])}/({n(v['t'])} × {n(v['d'])} × {n(v['G'])})"
+        elif {"Ga", "h", "b", "EA"} <= set(v):
+            numbers["bending"] = f"2h³/(3·EA·b²): 2 × {n(v['h'])}³/(3 × {n(v['EA'])} × {n(v['b'])}²)"
+            numbers["shear"] = f"h/(Ga·b): {n(v['h'])}/({n(v['Ga'])} × {n(v['b'])})"
+            if "k_hd" in v:
+                numbers["holdown"] = f"h²/(k_hd·b²): {n(v['h'])}²/({n(v['k_hd'])} × {n(v['b'])}²)"
+        elif "k" in v:
+            numbers["given"] = f"1/k: 1/{n(v['k'])}"
+        total = sum(wall.terms.values())
+        walls[wall.id] = {
+            "line": wall.line, "formula": wall.formula,
+            "inputs": {key: {"value": _r(value), "unit": kinds[key][1]} for key, value in v.items()},
+            # A wall model that records no inputs still shows its terms, without the numbers.
+            "terms": {key: {"calculation": numbers.get(key, f"{key} (inputs not recorded)"),
+                            "value": _r(value / flex_factor)}
+                      for key, value in wall.terms.items()},
+            "flexibility_total": _r(total / flex_factor), "flexibility_unit": flex_unit,
+            "k": _r(1.0 / total * flex_factor), "k_unit": f"{c_force}/{c_len}",
+            "k_in_results_units": _r(units.stiffness_out(wall.k)),
+        }
+
+    spans = [_worked_span_to_json(span, units) for span in trace.spans]
+    return {"seismic_weight": weights, "wall_stiffness": walls, "worked_spans": spans, "notes": list(trace.notes)}
+
+
+def _worked_span_to_json(span, units: OutputUnits) -> dict:
+    """One worked span as steps with formula, the numbers put in, and the result."""
+    F, L = units.force, units.length
+    f_out, l_out, q_out = units.force_out, units.length_out, units.line_force_out
+
+    def n(v):
+        return f"{v:.5g}"
+
+    def m_out(v):
+        return f_out(l_out(v))
+
+    length = l_out(span.s_right - span.s_left)
+    s_l, s_r = l_out(span.s_left), l_out(span.s_right)
+    W, xbar = f_out(span.total), l_out(span.centroid)
+    R_l, R_r = f_out(span.reaction_left), f_out(span.reaction_right)
+    M = m_out(span.m_max)
+    steps = []
+
+    def step(quantity, formula, numbers, value, unit):
+        steps.append({"quantity": quantity, "formula": formula, "numbers": numbers, "value": _r(value), "unit": unit})
+
+    pieces = [{"from": _r(l_out(a)), "to": _r(l_out(b)), "diaphragm_length": _r(l_out(ell)),
+               "w_start": _r(q_out(w0)), "w_end": _r(q_out(w1))} for a, b, ell, w0, w1 in span.pieces]
+    if span.force_ratio is not None:
+        how = (f"w(s) = (F/W) × (area weight × diaphragm length l(s) across the load (openings excluded) + weights across the load, "
+               f"point weights over their footprint), F/W = {n(span.force_ratio)} (case force / seismic weight)")
+    else:
+        how = "w(s) = wind intensity on the windward and leeward faces, spread across the depth of the diaphragm"
+    L_sym = f"{n(length)} {L}"
+    if span.uniform is not None:
+        w = q_out(span.uniform)
+        step("w", "uniform over the span", how, w, units.line_force)
+        step("W", "w·L", f"{n(w)} × {L_sym}", W, F)
+        step("R", "w·L/2", f"{n(w)} × {n(length)}/2", R_l, F)
+        step("V_max", "R (at the supports)", f"{n(R_l)}", f_out(span.v_max), F)
+        step("M_max", "w·L²/8", f"{n(w)} × {n(length)}²/8", M, f"{F}·{L}")
+    else:
+        parts = " + ".join(f"({n(p['w_start'])} + {n(p['w_end'])})/2 × {n(p['to'] - p['from'])}" for p in pieces)
+        if len(span.points):
+            parts += "".join(f" + {n(f_out(p))}" for _, p in span.points)
+        step("W", "Σ (w_start + w_end)/2 × (to − from) + point loads in the span", parts, W, F)
+        step("x̄", "position of the resultant: Σ W_k·x_k / W (x_k of a trapezoid: from + Δ(w_start + 2w_end)/(3(w_start + w_end)))",
+             f"from the pieces above; the span runs from {n(s_l)} to {n(s_r)} {L}", xbar, L)
+        step("R_left", "W·(s_right − x̄)/L", f"{n(W)} × ({n(s_r)} − {n(xbar)})/{n(length)}", R_l, F)
+        step("R_right", "W − R_left", f"{n(W)} − {n(R_l)}", R_r, F)
+        step("V_max", "largest |V|, at a support for loads of one sign", f"max({n(abs(R_l))}, {n(abs(R_r))})",
+             f_out(span.v_max), F)
+        step("M_max", "∫V ds from the left support to V = 0", f"V = 0 at {n(l_out(span.m_max_at))} {L}", M,
+             f"{F}·{L}")
+        step("M_max, uniform equivalent", "W·L/8 (the same W spread uniformly; a quick check)",
+             f"{n(W)} × {n(length)}/8", W * length / 8, f"{F}·{L}")
+    b_l, b_r = l_out(span.b_left), l_out(span.b_right)
+    step("v_left", "V/b at the left line, b = diaphragm depth beside it (openings excluded)",
+         f"{n(abs(R_l))}/{n(b_l)}", q_out(span.unit_shear_left), units.line_force)
+    step("v_right", "V/b at the right line", f"{n(abs(R_r))}/{n(b_r)}", q_out(span.unit_shear_right), units.line_force)
+    d = l_out(span.depth_at_m)
+    step("T = C", "M/d, d = outline depth at the section of M_max", f"{n(M)}/{n(d)}", f_out(span.chord), F)
+
+    def compare(name, hand, program, unit):
+        diff = hand - program
+        rel = diff / program if program else None if diff else 0.0  # None: not defined (program value 0)
+        return {"quantity": name, "hand": _r(hand), "program": _r(program), "difference": _r(diff),
+                "relative_difference": None if rel is None else float(f"{rel:.2e}"), "unit": unit}
+
+    checks = [
+        compare(f"unit shear at line {span.left} (right side)", q_out(span.unit_shear_left),
+                q_out(span.program["unit_shear_left"]), units.line_force),
+        compare(f"unit shear at line {span.right} (left side)", q_out(span.unit_shear_right),
+                q_out(span.program["unit_shear_right"]), units.line_force),
+        compare(f"chord force M/d at {n(l_out(span.program['chord_at']))} {L} (the program's station nearest to M_max)",
+                f_out(span.program["hand_chord_at"]), f_out(span.program["chord"]), F),
+    ] + [compare(f"line {name} force (Σ of the span reactions beside it)", f_out(hand), f_out(program), F)
+         for name, (hand, program) in span.line_check.items()]
+    return {
+        "load_axis": span.axis, "case": span.case, "span": f"{span.left}-{span.right}", "from": _r(s_l), "to": _r(s_r),
+        "L": _r(length), "why": "the span with the largest unit shear V/b at its ends among the flexible cases along "
+                                f"{span.axis}",
+        "load": {"how": how, "pieces": pieces,
+                 "points_in_span": [{"at": _r(l_out(s)), "P": _r(f_out(p))} for s, p in span.points],
+                 "on_the_lines": {span.left: _r(f_out(span.on_lines[0])), span.right: _r(f_out(span.on_lines[1]))},
+                 "note": "loads exactly on a support line go straight to that line and are not in V or M"},
+        "steps": steps, "check_against_flexible": checks,
+        "units": {"force": F, "length": L, "line_load": units.line_force, "moment": f"{F}·{L}"},
+    }

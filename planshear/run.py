@@ -30,6 +30,7 @@ from .postprocess.envelope import (
     with_irregularity_increase,
 )
 from .postprocess.irregularity import Irregularity, detect_irregularities
+from .postprocess.traceability import build_traceability
 from .postprocess.transfer import strut_cautions
 from .results import (
     MethodResult,
@@ -40,6 +41,7 @@ from .results import (
     irregularity_to_json,
     method_to_json,
     splices_to_json,
+    traceability_to_json,
 )
 from .semirigid import SemirigidRun, semirigid_analysis
 from .units import OutputUnits
@@ -106,6 +108,8 @@ class Results:
                 **envelope_to_json(self.engineer_envelope, units),
             },
             "comparison": comparison_to_json(compare_walls(self.methods), units),
+            "traceability": traceability_to_json(
+                build_traceability(self.plan, self.cases, self.methods.get("flexible")), units),
             "irregularities": [irregularity_to_json(i, units) for i in self.irregularities],
             "checks": checks_to_json(self.checks, units),
             "splice_forces": splices_to_json(self.splice_forces, units),
@@ -138,10 +142,11 @@ class Results:
             "directions": {},
         }
 
-    def write(self, folder: str | Path, report: bool = True) -> Path:
+    def write(self, folder: str | Path, report: bool = True, mesh_units: str = "si") -> Path:
         """Write the output folder completely or not at all: everything goes into a
         temporary folder next to ``folder`` that replaces it only once complete.
-        ``report=False`` leaves out the report, tables and figures."""
+        ``report=False`` leaves out the report, tables and figures; ``mesh_units`` ("si" or
+        "plan") are the units of the mesh files (see planshear.mesh_export)."""
         folder = Path(folder)
         parent = folder.resolve().parent
         parent.mkdir(parents=True, exist_ok=True)
@@ -155,7 +160,8 @@ class Results:
             text = json.dumps(doc, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
             (staging / "results.json").write_text(text + "\n", encoding="utf-8")
             if self.semirigid is not None:
-                write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane)
+                write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane,
+                                 units=mesh_units)
             if report:
                 from .report import (
                     write_review_package,  # the report module imports this one's types

@@ -17,7 +17,7 @@ Three forms, each returning the stiffness and a sentence saying which formula it
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 __all__ = ["WallStiffness", "pier_stiffness", "wood_wall_stiffness", "direct_stiffness"]
 
@@ -29,11 +29,12 @@ class WallStiffness:
     value: float
     formula: str
     flexibility_terms: dict[str, float]  # m/N, one entry per deflection term
+    inputs: dict[str, float] = field(default_factory=dict)  # SI values the terms were computed from
 
 
 def direct_stiffness(k: float) -> WallStiffness:
     """Stiffness given directly in the plan (N/m)."""
-    return WallStiffness(k, "given stiffness", {"given": 1.0 / k})
+    return WallStiffness(k, "given stiffness", {"given": 1.0 / k}, {"k": k})
 
 
 def pier_stiffness(
@@ -57,7 +58,8 @@ def pier_stiffness(
     )
     if G is None:
         formula += ", G = 0.4E"
-    return WallStiffness(1.0 / (flexure + shear), formula, {"flexure": flexure, "shear": shear})
+    return WallStiffness(1.0 / (flexure + shear), formula, {"flexure": flexure, "shear": shear},
+                         {"E": E, "G": shear_modulus, "t": thickness, "h": height, "d": length})
 
 
 def wood_wall_stiffness(
@@ -80,4 +82,5 @@ def wood_wall_stiffness(
         formula += " + h²/(k_hd·b²)"
     else:
         formula += " (rigid hold-down)"
-    return WallStiffness(1.0 / sum(terms.values()), formula, terms)
+    inputs = {"Ga": Ga, "h": h, "b": b, "EA": chord_EA} | ({} if holdown_k is None else {"k_hd": holdown_k})
+    return WallStiffness(1.0 / sum(terms.values()), formula, terms, inputs)

@@ -121,13 +121,13 @@ def test_mesh_files_read_back(package):
     for mesh in (vtu, xdmf):
         assert len(mesh.points) == doc["assumptions"]["semirigid"]["mesh"]["nodes"]
         for case in cases:
-            assert mesh.point_data[f"u[{case}]"].shape == (len(mesh.points), 3)
-            assert mesh.cell_data[f"N[{case}]"][0].shape == (n_elements, 3)
-            assert mesh.cell_data[f"N_principal[{case}]"][0].shape == (n_elements, 2)
-            assert mesh.cell_data[f"unit_shear[{case}]"][0].shape == (n_elements,)
+            assert mesh.point_data[f"u[{case}] (m)"].shape == (len(mesh.points), 3)
+            assert mesh.cell_data[f"N[{case}] (N/m)"][0].shape == (n_elements, 3)
+            assert mesh.cell_data[f"N_principal[{case}] (N/m)"][0].shape == (n_elements, 2)
+            assert mesh.cell_data[f"unit_shear[{case}] (N/m)"][0].shape == (n_elements,)
         assert mesh.cell_data["zone"][0].shape == (n_elements,)
     assert len(vtu.cells) == 2  # membrane elements and line elements (bars, walls, grid lines)
-    assert f"bar_force[{cases[0]}]" in vtu.cell_data
+    assert f"bar_force[{cases[0]}] (N)" in vtu.cell_data
     assert len(meshio.read(out / "mesh.msh").points) == len(vtu.points)
 
 
@@ -140,7 +140,7 @@ def test_wall_drift_equals_mesh_displacement(package):
     wall_index = vtu.cell_data["wall_id"][1]
     walls = list(doc["plan"]["wall_stiffness"])
     case = "E+y"
-    u = vtu.point_data[f"u[{case}]"][:, :2] / 0.0254  # m → in
+    u = vtu.point_data[f"u[{case}] (m)"][:, :2] / 0.0254  # m → in
     for index, wall in enumerate(walls):
         mine = edges[wall_index == index]
         xy = vtu.points[mine[:, :2], :2]
