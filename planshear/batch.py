@@ -40,6 +40,7 @@ __all__ = [
     "RunOutcome",
     "apply_values",
     "load_sweep",
+    "local_cluster",
     "make_jobs",
     "parse_vary",
     "run_batch",
@@ -439,7 +440,8 @@ def make_jobs(plans: Iterable[str | Path], axes: Iterable[Axis] = (), variants: 
                 chosen = [(a.key, t, v) for a, (t, v) in zip(axes, combo, strict=True)]
                 if variant is not None:
                     chosen += list(variant.values)
-                where = f"{path.name} ({', '.join(sorted({a.source for a in axes} | ({'[[variant]] ' + variant.name} if variant else set())))})"
+                sources = sorted({a.source for a in axes}) + ([f"[[variant]] {variant.name}"] if variant else [])
+                where = f"{path.name} ({', '.join(sources)})"
                 try:
                     changed = apply_values(document, [(k, v) for k, _, v in chosen], where)
                 except PlanError as exc:
@@ -600,8 +602,28 @@ def run_batch(jobs: list[Job], out: str | Path, *, scheduler: str | None = None,
     return BatchOutcome(out, tuple(outcomes), columns)
 
 
+#: Thread counts of the BLAS / OpenMP libraries. Dask's nanny sets them to 1 in its workers;
+#: the factorization then rounds differently in the last bits (solver and line residuals of
+#: order 1e-12 differ in results.json), so workers keep this process's settings instead.
+_BLAS_THREADS = ("OMP_NUM_THREADS", "MKL_NUM_THREADS", "OPENBLAS_NUM_THREADS")
+
+
+def local_cluster(workers: int | None = None):
+    """A Dask LocalCluster of ``workers`` processes (default: the machine's cores) of one
+    thread each (gmsh is not thread-safe), whose numerical libraries use the same thread
+    counts as ``planshear run`` started from this environment, so that every result is
+    byte for byte the one ``planshear run`` writes."""
+    import dask
+    from distributed import LocalCluster
+
+    same = {f"distributed.nanny.pre-spawn-environ.{name}": None for name in _BLAS_THREADS}
+    with dask.config.set(same):
+        return LocalCluster(n_workers=workers or os.cpu_count() or 1, threads_per_worker=1, processes=True,
+                            dashboard_address=None)
+
+
 def _run_on_dask(jobs, targets, scheduler, workers, report, progress, on_done) -> list[RunOutcome]:
-    from distributed import Client, LocalCluster, as_completed
+    from distributed import Client, as_completed
 
     cluster = None
     if scheduler:
@@ -612,8 +634,7 @@ def _run_on_dask(jobs, targets, scheduler, workers, report, progress, on_done) -
                                 "check the address (tcp://host:8786) or leave --scheduler out to use this "
                                 "machine's cores") from None
     else:
-        cluster = LocalCluster(n_workers=workers or os.cpu_count() or 1, threads_per_worker=1, processes=True,
-                               dashboard_address=None)
+        cluster = local_cluster(workers)
         client = Client(cluster)
     try:
         futures = client.map(run_job, jobs, targets, report=report, pure=False)

@@ -16,6 +16,7 @@ import pytest
 from planshear.batch import (
     apply_values,
     load_sweep,
+    local_cluster,
     make_jobs,
     parse_vary,
     run_batch,
@@ -39,10 +40,10 @@ def rect(tmp_path) -> Path:
 
 @pytest.fixture(scope="module")
 def cluster():
-    """A small Dask cluster of two one-thread worker processes (gmsh is not thread-safe)."""
-    distributed = pytest.importorskip("distributed")
-    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  dashboard_address=None) as local:
+    """The batch's own local cluster (two one-thread worker processes), reached through its
+    address like an existing cluster given with --scheduler."""
+    pytest.importorskip("distributed")
+    with local_cluster(2) as local:
         yield local
 
 
@@ -178,6 +179,22 @@ def test_dask_batch_matches_single_runs_byte_for_byte(rect, tmp_path, cluster):
     assert leftovers == []
 
 
+def test_workers_keep_the_numerical_thread_settings(cluster):
+    """Dask's nanny would set OMP/MKL/OPENBLAS_NUM_THREADS = 1 in its workers; the sparse
+    factorization then rounds differently than `planshear run` in the last bits (seen on the
+    demo plan: solver and line residuals of order 1e-12 differed in results.json), so the
+    workers keep this process's settings — and this process's are left alone."""
+    import os
+
+    from distributed import Client
+
+    names = ("OMP_NUM_THREADS", "MKL_NUM_THREADS", "OPENBLAS_NUM_THREADS")
+    with Client(cluster) as client:
+        seen = client.run(lambda: [os.environ.get(n) for n in names])
+    assert len(seen) == 2
+    assert all(values == [os.environ.get(n) for n in names] for values in seen.values())
+
+
 def test_summary_rows_and_cli_exit_code(rect, tmp_path, cluster, capsys):
     """summary.csv and summary.parquet hold one row per run with units in the headers. The
     analysis is linear, so doubling the seismic total doubles every wall force (superposition,
@@ -215,6 +232,15 @@ def test_serial_mode_and_setup_errors_write_nothing(rect, tmp_path, capsys):
     assert not out.exists()
     assert main(["batch", str(rect), "--out", str(out), "--serial", "--no-report", "--quiet"]) == 0
     assert (out / "rect" / "results.json").is_file() and (out / "summary.csv").is_file()
+    # A sweep file's plans and variants with a --vary axis on top.
+    sweep = tmp_path / "sweep.toml"
+    sweep.write_text('plans = ["rect.toml"]\n[[variant]]\nname = "soft"\nset = { "wall.W1.stiffness" = "5 kip/in" }\n')
+    assert main(["batch", "--sweep", str(sweep), "--vary", "mesh.size=12.5", "--out", str(out), "--serial",
+                 "--no-report"]) == 0
+    assert "ok     rect_soft_size=12.5" in capsys.readouterr().out
+    ran = tomllib.loads((out / "rect_soft_size=12.5" / "rect.toml").read_text())
+    assert ran["wall"][0]["stiffness"] == "5 kip/in" and ran["mesh"]["size"] == 12.5
+    assert not (out / "rect").exists()  # the earlier batch folder was replaced as a whole
 
 
 def test_run_does_not_import_dask_or_pyarrow(rect):
