@@ -317,6 +317,9 @@ def main(argv: list[str] | None = None) -> int:
     for line in _targets(records):
         print(line)
     if not args.quick and not args.sizes:
-        (HERE / "RESULTS.md").write_text(_markdown(records, exponents), encoding="utf-8")
+        path = HERE / "RESULTS.md"
+        old = path.read_text(encoding="utf-8") if path.exists() else ""
+        sweep = old[old.index("<!-- sweep:begin -->"):] if "<!-- sweep:begin -->" in old else ""  # benchmarks.sweep's
+        path.write_text(_markdown(records, exponents) + ("\n" + sweep if sweep else ""), encoding="utf-8")
         print(f"wrote {HERE / 'RESULTS.md'}")
     return 0 if all("times" in r for r in records) else 1

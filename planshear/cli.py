@@ -1,4 +1,4 @@
-"""Command line: ``planshear check | run | demo | import``.
+"""Command line: ``planshear check | run | demo | import | batch | diff``.
 
 Exit codes: 0 success, 2 bad input (the plan file), 1 internal error (including a case
 whose wall forces fail the equilibrium check: nothing is written then). Only this module
@@ -58,6 +58,27 @@ def _parser() -> argparse.ArgumentParser:
     imp.add_argument("--units", default=None, help="what one drawing unit is (in, ft, mm, cm, m); default: the "
                                                    "drawing header's $INSUNITS")
     imp.add_argument("--force", action="store_true", help="replace an existing --out file")
+    batch = sub.add_parser("batch", help="run many plans and parameter variants (on Dask) with one summary table")
+    batch.add_argument("plans", nargs="*", metavar="PLAN", help="plan files (.toml)")
+    batch.add_argument("--out", required=True, help="output folder: one folder per run and summary.csv/.parquet")
+    batch.add_argument("--vary", action="append", default=[], metavar="KEY=V1,V2,...",
+                       help='dotted key into the plan and its values, e.g. "diaphragm.material.Ga=10 kip/in,20 kip/in"'
+                            " (repeat for a grid of every combination)")
+    batch.add_argument("--sweep", metavar="SWEEP.toml", help="sweep file: plans, [grid] and [[variant]] entries")
+    batch.add_argument("--scheduler", metavar="ADDRESS", help="existing Dask scheduler (tcp://host:8786); "
+                       "default: a local cluster on this machine's cores")
+    batch.add_argument("--workers", type=int, metavar="N", help="local worker processes (default: the cores)")
+    batch.add_argument("--serial", action="store_true", help="run one after another in this process, without Dask")
+    batch.add_argument("--no-report", action="store_true", help="write results.json and mesh files only per run")
+    batch.add_argument("--quiet", action="store_true", help="print nothing but errors")
+    diff = sub.add_parser("diff", help="what changed between two results folders")
+    diff.add_argument("run_a", metavar="RUN_A", help="results folder (holding results.json), the reference")
+    diff.add_argument("run_b", metavar="RUN_B", help="results folder compared with RUN_A")
+    diff.add_argument("--threshold", action="append", default=[], metavar="5%|0.5 kip",
+                      help="report a value that moved by more than this relative and this absolute amount "
+                           "(default 5%% and 0.5 kip / 2 kN; give either or both)")
+    diff.add_argument("--csv", metavar="OUT.csv", help="also write every compared item to this CSV file")
+    diff.add_argument("--all", action="store_true", help="list unchanged items in the terminal too")
     return parser
 
 
@@ -97,6 +118,10 @@ def main(argv: list[str] | None = None) -> int:
                 for assumption, reason in not_run.items():
                     print(f"  {assumption}: cannot be run — {reason}")
             return EXIT_OK
+        if args.command == "batch":
+            return _batch(args)
+        if args.command == "diff":
+            return _diff(args)
         if args.command == "demo":
             text = resources.files("planshear").joinpath("data/demo.toml").read_text(encoding="utf-8")
             plan = parse_plan(text, "demo.toml")
@@ -139,6 +164,52 @@ def main(argv: list[str] | None = None) -> int:
         print(f"internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         print("This is a bug in planshear; please report it with the plan file.", file=sys.stderr)
         return EXIT_INTERNAL
+
+
+def _batch(args) -> int:
+    """planshear batch: exit 0 when every run succeeded, else 2 (some plan refused) or 1."""
+    from .batch import load_sweep, make_jobs, parse_vary, run_batch
+
+    plans, axes, variants = list(args.plans), [], []
+    if args.sweep:
+        sweep = load_sweep(args.sweep)
+        plans += [str(p) for p in sweep.plans]
+        axes += list(sweep.axes)
+        variants = list(sweep.variants)
+    axes += [parse_vary(option) for option in args.vary]
+    if args.workers is not None and args.workers < 1:
+        raise PlanError([f"--workers {args.workers}: give at least 1"])
+    jobs = make_jobs(plans, axes, variants)
+    show = not args.quiet
+    if show:
+        where = ("in this process" if args.serial else f"on the Dask scheduler {args.scheduler}" if args.scheduler
+                 else "on a local Dask cluster")
+        print(f"{len(jobs)} run(s) {where}", file=sys.stderr)
+    outcome = run_batch(jobs, args.out, scheduler=args.scheduler, workers=args.workers, serial=args.serial,
+                        report=not args.no_report, progress=show and sys.stdout.isatty() and not args.serial)
+    if show:
+        for run in outcome.runs:
+            verdicts = "  ".join(f"{k}: {v}" for k, v in run.row.items() if k.startswith("verdict"))
+            largest = next((f"largest wall {run.row['largest wall']} {v:.2f} {k.split('[')[1][:-1]}"
+                            for k, v in run.row.items() if k.startswith("largest wall force")), "")
+            state = "ok    " if run.status == "ok" else "FAILED"
+            print(f"{state} {run.name}" + (f"  {verdicts}  {largest}" if run.status == "ok" else f": {run.error}"))
+        print(f"summary: {outcome.out}/summary.csv and summary.parquet ({len(outcome.runs) - len(outcome.failed)} "
+              f"ok, {len(outcome.failed)} failed; a failed run's traceback is in its folder's error.txt)")
+    if not outcome.failed:
+        return EXIT_OK
+    serious = any(r.error_kind not in ("bad input", "analysis") for r in outcome.failed)
+    return EXIT_INTERNAL if serious else EXIT_BAD_INPUT
+
+
+def _diff(args) -> int:
+    from .diff import compare_runs, format_table, write_csv
+
+    comparison = compare_runs(args.run_a, args.run_b, args.threshold)
+    if args.csv:
+        write_csv(comparison, args.csv)
+    print(format_table(comparison, show_all=args.all))
+    return EXIT_OK
 
 
 def _progress_printer(quiet: bool):

@@ -16,9 +16,20 @@ from __future__ import annotations
 
 import math
 import re
+import sys
 from dataclasses import dataclass
 
-import pint
+# pint imports dask when it is installed (about 0.3 s, for dask arrays, which planshear never
+# hands it); dask is there for `planshear batch` only. Hide it from pint's check so that
+# `planshear run` starts without it; a process that already imported dask is left alone.
+_HIDE_DASK = "dask" not in sys.modules
+if _HIDE_DASK:
+    sys.modules["dask"] = None  # type: ignore[assignment]  # find_spec("dask") is None then
+try:
+    import pint
+finally:
+    if _HIDE_DASK:
+        del sys.modules["dask"]
 
 __all__ = [
     "UNITS",
