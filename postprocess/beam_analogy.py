@@ -422,7 +422,7 @@ def _line_diagram(
         p_in = [i for i, (t, _) in enumerate(points) if t0 - 10 * eps <= t <= t1 + 10 * eps]
         assigned[in_piece] = True
         point_assigned[p_in] = True
-        stations, force = _running_axial_force(
+        stations, force = running_axial_force(
             [spans[i] for i in in_piece], [points[i] for i in p_in], t0, t1, sign
         )
         k = int(np.argmax(np.abs(force)))
@@ -451,7 +451,7 @@ def _line_diagram(
     )
 
 
-def _running_axial_force(
+def running_axial_force(
     spans: list[tuple[float, float, float]],
     points: list[tuple[float, float]],
     t_start: float,

@@ -14,7 +14,10 @@ A member along x is a collector under load along x (it drags the diaphragm's she
 walls of its line) and a chord under load along y (it takes M/d of the span across it).
 So the semi-rigid bar force of a grid line enters its collector role only in the cases
 along the line, and in the cases across it enters the member's chord role (slots
-``across_tension`` / ``across_compression`` of the line, never with Ω0); an outline-edge
+``across_tension`` / ``across_compression`` of the line); where walls stand on the line they
+take force out of it under torsion, and that drag part, estimated by the flexible method's
+collector rule (:func:`torsional_collector`), is the only part that takes Ω0: the collector
+role with Ω0 of such a case is the bar force + (Ω0 − 1) × drag, station by station; an outline-edge
 chord on a grid line enters the chord role only in the cases across it (in the cases along
 it the same bar is the line's collector). The idealized methods keep their roles apart by
 construction (collector = running sum along the line, chord = M/depth) and are taken as
@@ -31,6 +34,7 @@ from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
 from planshear.loads import LoadCase
 from planshear.results import MethodResult
 
+from .beam_analogy import _merge, running_axial_force, side_intervals
 from .classify import Classification
 from .transfer import transfer_peaks
 
@@ -165,9 +169,17 @@ def build_envelope(
                 if design:
                     r["design"] = better(r["design"], to_fx * line.reaction, assumption, case_name, factor=fv)
                 if semirigid and layout.line_axis.get(name) not in (None, case.axis):
-                    # Load across the line: the bar is a chord here (no Ω0), see the module docstring.
+                    # Load across the line: the bar is a chord here (no Ω0), see the module docstring,
+                    # except the part that collects the line's wall forces (torsion), which takes Ω0.
                     if design:
                         extremes(c, line.collector, assumption, case_name, "across_", combination=fd)
+                        drag = torsional_collector(layout, name, result.wall_forces, np.asarray(line.stations))
+                        if omega != 1.0 and len(drag) and np.abs(drag).max() > 1e-9 * case.force:
+                            combined = np.asarray(line.collector) + (omega - 1.0) * drag
+                            peak = float(combined[np.argmax(np.abs(combined))])
+                            c["with_overstrength"] = better(c["with_overstrength"], peak, assumption, case_name,
+                                                            factor=fd)
+                            extremes(c, combined, assumption, case_name, "with_overstrength_", 1.0, fd)
                     continue
                 c["information"] = better(c["information"], line.peak, assumption, case_name, factor=fd)
                 if design:
@@ -303,6 +315,10 @@ class MemberLayout:
     line_axis: dict[str, str | None]  # grid line → axis it runs along (None: skewed)
     chord_line: dict[str, str | None]  # chord key → grid line it lies on
     chord_axis: dict[str, str | None]  # chord key → axis it runs along
+    # grid line → its walls (id, t0, t1 m, sign of the wall's force direction along the line)
+    line_walls: dict[str, tuple[tuple[str, float, float, float], ...]] = field(default_factory=dict)
+    # grid line → pieces (t0, t1 m) of the line with diaphragm on or beside it
+    line_pieces: dict[str, tuple[tuple[float, float], ...]] = field(default_factory=dict)
 
 
 def _cross(a: np.ndarray, b: np.ndarray) -> float:
@@ -391,7 +407,44 @@ def member_layout(plan) -> MemberLayout:
             name = (f"edge at {'xy'[across]} = {a[across] / scale:.4g} {unit}, "
                     f"{_bays(plan, a, d, 0.0, float(np.hypot(*(b - a))), None, tol)}")
         members.append(MemberName(name, None, tuple(a), tuple(b), None, (key,), None))
-    return MemberLayout(tuple(members), line_axis, chord_line, chord_axis)
+    line_walls: dict[str, list] = {}
+    for wall in plan.walls:
+        g = plan.line(wall.line)
+        t0, t1 = sorted(((wall.start - g.origin) @ g.direction, (wall.end - g.origin) @ g.direction))
+        line_walls.setdefault(wall.line, []).append((wall.id, float(t0), float(t1), float(wall.direction @ g.direction)))
+    line_pieces = {}
+    for g in plan.grid_lines:
+        if g.name in line_walls and g.parallel_to is not None:
+            s_index = 1 if g.parallel_to == "x" else 0
+            eps = 1e-7 * size
+            found = side_intervals(plan, g, s_index, -eps) + side_intervals(plan, g, s_index, eps)
+            line_pieces[g.name] = tuple(_merge(found + side_intervals(plan, g, s_index, 0.0), 10 * eps))
+    return MemberLayout(tuple(members), line_axis, chord_line, chord_axis,
+                        {k: tuple(v) for k, v in line_walls.items()}, line_pieces)
+
+
+def torsional_collector(layout: MemberLayout, line: str, wall_forces: dict[str, float],
+                        stations: np.ndarray) -> np.ndarray:
+    """Collector force (N, tension +) at ``stations`` (m along the line) that the walls of a
+    line take out of the diaphragm under a load ACROSS the line (torsion), by the hand method
+    of the flexible idealization (common practice): on each piece of the line with diaphragm,
+    the piece's wall forces are delivered by a uniform shear over the piece, and the collector
+    force is the running sum of delivered shear less wall forces. The semi-rigid bar on the
+    line carries this together with its chord force; only this part takes Ω0."""
+    walls = layout.line_walls.get(line, ())
+    out = np.zeros(len(stations))
+    for t0, t1 in layout.line_pieces.get(line, ()):
+        inside = [(a, b, sign * wall_forces.get(w, 0.0)) for w, a, b, sign in walls
+                  if a >= t0 - 1e-9 * (t1 - t0 + 1.0) and b <= t1 + 1e-9 * (t1 - t0 + 1.0)]
+        taken = sum(f for _, _, f in inside)
+        if not inside or t1 <= t0:
+            continue
+        # Forces on the line along +t: the walls push back (−f), the diaphragm delivers +taken.
+        spans = [(a, b, -f) for a, b, f in inside] + [(t0, t1, taken)]
+        knots, force = running_axial_force(spans, [], t0, t1, 1.0)
+        here = (stations >= t0 - 1e-9) & (stations <= t1 + 1e-9)
+        out[here] = np.interp(stations[here], knots, force)
+    return out
 
 
 @dataclass(frozen=True)

@@ -6,6 +6,7 @@ each test."""
 
 import textwrap
 
+import numpy as np
 import pytest
 
 from planshear.plan import load_plan
@@ -97,3 +98,63 @@ def test_semirigid_roles_split_by_load_direction(plan_from):
     doc = result.to_json()
     assert doc["envelope"]["chords"]["edge 1"]["member"] == "line A, 1–2"
     assert doc["envelope"]["members"]["line A, 1–2"]["design"]["role"] in ("chord", "collector")
+
+
+def test_torsional_collector_estimate_is_the_beam_analogy_collector(plan_from):
+    """The drag part of a line's bar force under a load across it (torsion) is estimated by
+    the flexible method's own collector rule (uniform delivered shear over the line, running
+    sum less the wall forces; common practice). Check: on a line along the load, where the
+    beam analogy delivers a uniform shear from one side, both give the same diagram exactly
+    (here 20 + 10 ft walls on line A of a 100 ft side: −20, −5, −15, +5 kip at the wall ends)."""
+    from planshear.idealized import flexible_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.postprocess.envelope import torsional_collector
+
+    def wall(wall_id, line, a, b, k):
+        return f'\n[[wall]]\nid = "{wall_id}"\nline = "{line}"\nfrom = {a}\nto = {b}\nstiffness = "{k} kip/in"\n'
+
+    walls = (wall("W1", "1", 0, 50, 50) + wall("W2", "2", 0, 50, 20) + wall("WA", "A", 40, 60, 30)
+             + wall("WA2", "A", 80, 90, 30) + wall("WB", "B", 40, 60, 30))
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "100 kip"
+        directions = ["x"]
+        ''')
+    plan = plan_from(rectangle_plan(walls=walls, load=load))
+    result = flexible_analysis(plan, expand_load_cases(plan)).cases["E+x"]
+    line = result.lines["A"]
+    estimate = torsional_collector(member_layout(plan), "A", result.wall_forces, np.asarray(line.stations))
+    assert np.allclose(estimate, line.collector, rtol=1e-9, atol=1e-6 * abs(line.collector).max())
+    assert abs(line.collector).max() > 0
+
+
+def test_torsional_drag_takes_overstrength_in_the_semirigid_envelope(plan_from):
+    """Under a load across line A with accidental torsion, the walls on A take force out of
+    the chord-and-collector bar. That drag part gets Ω0 (ASCE 7-16 §12.10.2.1): the member's
+    collector role with Ω0 exceeds its chord role by (Ω0 − 1) × the drag at the governing
+    station, while a line without walls (B has its walls removed here) stays chord only."""
+    def wall(wall_id, line, a, b, k):
+        return f'\n[[wall]]\nid = "{wall_id}"\nline = "{line}"\nfrom = {a}\nto = {b}\nstiffness = "{k} kip/in"\n'
+
+    walls = (wall("W1", "1", 0, 50, 50) + wall("W2", "2", 0, 50, 20) + wall("WA", "A", 40, 60, 30)
+             + wall("WC", "C", 40, 60, 30))
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "100 kip"
+        directions = ["y"]
+        collector_overstrength = 2.5
+        ''')
+    grid = 'x = { "1" = 0, "2" = 100 }\ny = { "A" = 0, "C" = 25, "B" = 50 }'
+    plan = plan_from(rectangle_plan(walls=walls, load=load, grid=grid))
+    collectors = analyze(plan).envelope.collectors
+    a = collectors["A"]
+    chord = max(abs(a["across_tension"].value), abs(a["across_compression"].value))
+    with_omega = max(abs(a["with_overstrength_tension"].value), abs(a["with_overstrength_compression"].value))
+    assert with_omega > chord * 1.01
+    assert "with_overstrength_tension" not in collectors.get("B", {})
