@@ -124,9 +124,16 @@ def weight_breakdown(plan: Plan, load) -> WeightBreakdown:
                            for i, o in enumerate(plan.openings) if Polygon(o).intersection(gross_geometry).area > 0)
         items.append(WeightItem("area", label, float(gross_geometry.area), deductions, float(geometry.area),
                                 pressure, pressure * float(geometry.area)))
-    for (line_name, _, _, q), (a, b, _) in zip(load.line_weights, lines, strict=True):
+    scale, unit = plan.length_scale, plan.length_unit
+    labels = [f"line {name}" for name, _, _, _ in load.line_weights]
+    labels += [f"perimeter edge ({a[0] / scale:.4g}, {a[1] / scale:.4g})–({b[0] / scale:.4g}, {b[1] / scale:.4g}) {unit}"
+               for a, b, _, _ in load.edge_weights]
+    axes = [load.weight_axes(i) for i in range(len(load.line_weights))] + [ax for *_, ax in load.edge_weights]
+    for label, along, (a, b, q) in zip(labels, axes, lines, strict=True):
         length = float(np.hypot(*(b - a)))
-        items.append(WeightItem("line", f"line {line_name}", length, (), length, q, q * length))
+        if tuple(along) != ("x", "y"):
+            label += f" (acts only in loads along {', '.join(along)})"
+        items.append(WeightItem("line", label, length, (), length, q, q * length))
     for x, y, p, _ in points:
         items.append(WeightItem("point", f"point at ({x / plan.length_scale:g}, {y / plan.length_scale:g})",
                                 None, (), None, None, p))
