@@ -39,12 +39,22 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--format", choices=("text", "json"), default="text")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors")
     run.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
+    _report_options(run)
     demo = sub.add_parser("demo", help="analyze the built-in demo plan")
     demo.add_argument("--out", default="planshear-demo", help="output folder (default: planshear-demo)")
     demo.add_argument("--format", choices=("text", "json"), default="text")
     demo.add_argument("--quiet", action="store_true")
     demo.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
+    _report_options(demo)
     return parser
+
+
+def _report_options(command) -> None:
+    command.add_argument("--figures", choices=("none", "key", "all"), default="key",
+                         help="figures in the report: none, key (default: plan, every collector and chord at its "
+                              "governing case, unit shear along the spans, maps of the base cases) or all (every case)")
+    command.add_argument("--page-size", choices=("letter", "a4"), default="letter",
+                         help="paper of report.pdf and of the printed HTML (default: letter)")
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -74,7 +84,7 @@ def main(argv: list[str] | None = None) -> int:
         progress = _progress_printer(quiet=args.quiet or args.format == "json")
         results = analyze(plan, progress=progress)
         progress("writing results, report, figures and mesh files")
-        results.write(out, report=not args.no_report)
+        results.write(out, report=not args.no_report, figures=args.figures, page_size=args.page_size)
         progress("done")
         if args.format == "json":
             print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))

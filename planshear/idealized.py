@@ -110,7 +110,9 @@ def _case_from_analogy(
         max_unit_shear_at=max_at,
         max_displacement=max_displacement,
         equilibrium_residual=max(residual, collector_residual / case.force),
-        extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {})},
+        extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {}),
+               # V(s) and ℓ(s) of the span: the unit-shear diagram V/ℓ of the report.
+               "span_shear": (main.stations, main.shear, main.length_available)},
     )
 
 

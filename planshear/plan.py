@@ -218,6 +218,9 @@ class ClassificationFlags:
     adjacent_stiffness_ratio: float | None = None
 
 
+TITLE_BLOCK_KEYS = ("job", "engineer", "checker", "date", "revision")
+
+
 @dataclass(frozen=True, eq=False)
 class Plan:
     """A validated plan in SI units. ``region`` is the outline less the openings."""
@@ -254,6 +257,8 @@ class Plan:
             return self.chord_EA, "chord_EA"
         return None, None
     transfers: tuple[Transfer, ...] = ()
+    # [plan] job, engineer, checker, date, revision for the report's title block (text; absent keys left out).
+    title_block: tuple[tuple[str, str], ...] = ()
 
     def line(self, name: str) -> GridLine:
         for grid_line in self.grid_lines:
@@ -387,6 +392,24 @@ class _PlanBuilder:
 
     # -- sections ------------------------------------------------------------------------
 
+    def title_block(self, table: dict) -> tuple[tuple[str, str], ...]:
+        """[plan] job, engineer, checker, date and revision as text; the date may be a TOML
+        date (date = 2026-12-02) or text."""
+        import datetime
+
+        out = []
+        for key in TITLE_BLOCK_KEYS:
+            if key not in table:
+                continue
+            value = table[key]
+            if key == "date" and isinstance(value, datetime.date):
+                value = value.isoformat()[:10]
+            if not isinstance(value, str):
+                self.problem(f"plan.{key}", f"must be text or a date, got {value!r}; write e.g. {key} = \"2026-12-02\"")
+                continue
+            out.append((key, value.strip()))
+        return tuple(out)
+
     def build(self) -> Plan:
         doc = self.doc
         plan_table = doc["plan"]
@@ -399,6 +422,7 @@ class _PlanBuilder:
         self.scale = LENGTH_UNITS[unit]
         name = plan_table.get("name", Path(self.label).stem)
         code = plan_table.get("code", DEFAULT_EDITION)
+        title_block = self.title_block(plan_table)
         if code not in EDITIONS:
             self.problem("plan.code", f'"{code}" is not available; planshear implements {", ".join(EDITIONS)} '
                          "(ASCE 7-22 only where its clauses can be confirmed from the standard's text: not yet). "
@@ -498,6 +522,7 @@ class _PlanBuilder:
             mesh=mesh,
             classification=classification,
             collector_EA=collector_EA,
+            title_block=title_block,
             transfers=tuple(transfers),
             design_envelope=chosen,
             code=code,

@@ -2,6 +2,7 @@
 
 import csv
 import json
+import re
 import shutil
 import subprocess
 from html.parser import HTMLParser
@@ -61,9 +62,12 @@ def test_package_is_complete(package):
     assert (out / "report.pdf").read_bytes().startswith(b"%PDF")
     html_text = (out / "report.html").read_text()
     assert "licensed engineer" in html_text
-    # Nothing to fetch: figures are inline SVG; no src or href points outside the page.
-    for marker in ('src="http', "src='http", 'href="http', "href='http", "<img", "<link", "<script"):
+    # Nothing to fetch: figures are inline (the plan as SVG, the others as PNG data URIs);
+    # no src or href points outside the page.
+    for marker in ('src="http', "src='http", 'href="http', "href='http", "<link", "<script"):
         assert marker not in html_text, marker
+    images = re.findall(r"<img [^>]*>", html_text)
+    assert images and all('src="data:image/png;base64,' in tag for tag in images)
 
 
 def test_report_tables_equal_results_json(package):
