@@ -32,7 +32,7 @@ def plan_34_walls() -> str:
     xs = {str(k + 1): 40 * k for k in range(7)}  # 0 … 240 ft
     ys = {chr(ord("A") + k): 30 * k for k in range(5)}  # 0 … 120 ft
     lines = [
-        "[plan]", 'name = "34-wall floor"', 'length_unit = "ft"', 'job = "benchmark"',
+        "[plan]", 'name = "34-wall floor"', 'length_unit = "ft"',
         "[diaphragm]", "outline = [[0, 0], [240, 0], [240, 80], [180, 80], [180, 120], [0, 120]]",
         'material = { kind = "wood-panel", Ga = "18 kip/in" }', 'chord_EA = "30000 kip"',
         "[grid]",
@@ -63,27 +63,52 @@ def _load() -> float:
     return os.getloadavg()[0]
 
 
+def _env(source: str | None) -> dict | None:
+    """Environment for the timed commands: ``source``, a planshear source tree to time
+    instead of this one (e.g. an export of an earlier commit), first on the path."""
+    if source is None:
+        return None
+    return dict(os.environ, PYTHONPATH=os.pathsep.join(p for p in (source, os.environ.get("PYTHONPATH")) if p))
+
+
 def _command(plan: str | None, out: Path, extra: list[str]) -> list[str]:
     base = [sys.executable, "-m", "planshear.cli"]
     target = ["demo"] if plan is None else ["run", plan]
     return base + target + ["--out", str(out), "--quiet"] + extra
 
 
-def time_commands(plan: str | None, folder: Path, repeat: int) -> dict[str, dict]:
-    """Median wall time (s) and the load averages of each variant, run alternately."""
-    variants = {"no report": ["--no-report"], "report, --figures key": ["--figures", "key"],
-                "report, --figures all": ["--figures", "all"]}
+def time_commands(plan: str | None, folder: Path, repeat: int, source: str | None = None) -> dict[str, dict]:
+    """Median wall time (s), CPU time and the load averages of each variant, run in turn
+    in every round (``source``: also that planshear tree, with and without its report)."""
+    variants = {"no report": ([], ["--no-report"]), "report, --figures key": ([], ["--figures", "key"]),
+                "report, --figures all": ([], ["--figures", "all"])}
+    if source is not None:  # the earlier tree first, in the same rounds, under the same load
+        variants = {"before: no report": ([source], ["--no-report"]), "before: report": ([source], []),
+                    **variants}
     times: dict[str, list[float]] = {v: [] for v in variants}
+    cpu: dict[str, list[float]] = {v: [] for v in variants}
     loads: dict[str, list[float]] = {v: [] for v in variants}
     for _ in range(repeat):
-        for name, extra in variants.items():
+        for name, (tree, extra) in variants.items():
             out = folder / "out"
             shutil.rmtree(out, ignore_errors=True)
             loads[name].append(_load())
+            before = _children_cpu()
             start = time.perf_counter()
-            subprocess.run(_command(plan, out, extra), check=True)
+            subprocess.run(_command(plan, out, extra), check=True, env=_env(tree[0] if tree else None))
             times[name].append(time.perf_counter() - start)
-    return {v: {"median": statistics.median(times[v]), "all": times[v], "load": loads[v]} for v in variants}
+            cpu[name].append(_children_cpu() - before)
+    return {v: {"median": statistics.median(times[v]), "all": times[v], "load": loads[v],
+                "cpu": statistics.median(cpu[v])} for v in variants}
+
+
+def _children_cpu() -> float:
+    """User + system CPU seconds of the finished child processes (and theirs): the work
+    done, which a shared machine's load does not stretch the way it stretches wall time."""
+    import resource
+
+    usage = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return usage.ru_utime + usage.ru_stime
 
 
 def step_times(plan_text: str, label: str, folder: Path) -> tuple[float, float, dict]:
@@ -105,6 +130,8 @@ def step_times(plan_text: str, label: str, folder: Path) -> tuple[float, float, 
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m benchmarks.report", description=__doc__.splitlines()[0])
     parser.add_argument("--repeat", type=int, default=2, help="runs of each variant (median reported)")
+    parser.add_argument("--source", help="also time the planshear source tree in this folder (e.g. `git archive` of "
+                                         "an earlier commit) with and without its report, in the same rounds")
     args = parser.parse_args(argv)
     from importlib import resources
 
@@ -115,18 +142,21 @@ def main(argv: list[str] | None = None) -> int:
         plan_34 = folder / "floor34.toml"
         plan_34.write_text(plan_34_walls(), encoding="utf-8")
         for label, plan, text in (("demo", None, demo_text), (WALLS_34, str(plan_34), plan_34_walls())):
-            timed = time_commands(plan, folder, args.repeat)
-            bare = timed["no report"]["median"]
+            timed = time_commands(plan, folder, args.repeat, args.source)
             for variant, record in timed.items():
+                reference = timed["before: no report" if variant.startswith("before") else "no report"]
+                bare, bare_cpu = reference["median"], reference["cpu"]
                 loads = ", ".join(f"{x:.1f}" for x in record["load"])
                 rows.append(f"| {label} | {variant} | {record['median']:.1f} | {record['median'] / bare:.2f} | "
+                            f"{record['cpu']:.1f} | {record['cpu'] / bare_cpu:.2f} | "
                             f"{', '.join(f'{t:.1f}' for t in record['all'])} | {loads} |")
             analysis, written, steps = step_times(text, "demo.toml" if plan is None else plan, folder)
             load = _load()
             parts = "; ".join(f"{k} {v:.2f}" for k, v in sorted(steps.items(), key=lambda kv: -kv[1]))
             steps_rows.append(f"| {label} | {analysis:.2f} | {written:.2f} | {parts} | {load:.1f} |")
-    print("| plan | command | median (s) | × without report | runs (s) | load average at each run |")
-    print("|---|---|---:|---:|---|---|")
+    print("| plan | command | median wall (s) | × without report | median CPU (s) | CPU × without report | "
+          "runs, wall (s) | load average at each run |")
+    print("|---|---|---:|---:|---:|---:|---|---|")
     print("\n".join(rows))
     print()
     print("| plan | analysis (s) | results.json + mesh (s) | report steps (s; figures drawn in parallel: "

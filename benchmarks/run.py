@@ -296,6 +296,9 @@ def _version(module: str) -> str | None:
         return None
 
 
+REPORT_SECTION = "## Report writing"
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m benchmarks", description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="small sizes only; RESULTS.md is not rewritten")
@@ -317,6 +320,10 @@ def main(argv: list[str] | None = None) -> int:
     for line in _targets(records):
         print(line)
     if not args.quick and not args.sizes:
-        (HERE / "RESULTS.md").write_text(_markdown(records, exponents), encoding="utf-8")
+        # The report-writing section (python -m benchmarks.report) is kept as it was.
+        old = (HERE / "RESULTS.md").read_text(encoding="utf-8") if (HERE / "RESULTS.md").exists() else ""
+        kept = old[old.index(REPORT_SECTION):] if REPORT_SECTION in old else ""
+        (HERE / "RESULTS.md").write_text(_markdown(records, exponents) + ("\n" + kept if kept else ""),
+                                         encoding="utf-8")
         print(f"wrote {HERE / 'RESULTS.md'}")
     return 0 if all("times" in r for r in records) else 1

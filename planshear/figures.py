@@ -24,6 +24,7 @@ import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.collections import PolyCollection
 from matplotlib.figure import Figure
+from matplotlib.ticker import MaxNLocator
 
 __all__ = ["STYLE", "plan_figure", "member_diagram_figure", "unit_shear_figure", "shear_map_figure",
            "deflected_figure", "span_deflection_figure", "line_gaps", "broken_at", "render", "DPI"]
@@ -57,6 +58,9 @@ def _figure(width: float = 7.5, height: float = 4.5, margins: tuple[float, float
     for spine in ax.spines.values():
         spine.set_color(INK)
     ax.tick_params(colors=INK, labelsize=8)
+    # Up to 7 ticks per axis: ticks are most of an axes' drawing time.
+    ax.xaxis.set_major_locator(MaxNLocator(7))
+    ax.yaxis.set_major_locator(MaxNLocator(7))
     return fig, ax
 
 
@@ -142,7 +146,7 @@ def member_diagram_figure(title: str, xlabel: str, ylabel: str, series: list[dic
     value, annotated beside its point)."""
     rows = _key_rows(len(series))
     bottom = 0.62 + KEY_ROW * rows + (0.16 if note else 0.0)
-    fig, ax = _figure(7.5, 2.7 + bottom, (0.75, bottom, 0.2, 0.3))
+    fig, ax = _figure(7.5, 2.4 + bottom, (0.75, bottom, 0.2, 0.3))
     entries = []
     for item in series:
         diagram = np.asarray(item["points"], dtype=float).reshape(-1, 2)

@@ -42,9 +42,10 @@ __all__ = ["write_review_package", "write_tables", "build_report", "render_figur
            "Section", "Table", "FigureSpec", "TitleBlock", "METHODS_TEXT", "LIMITATIONS_TEXT", "FIGURE_CHOICES",
            "PAGE_SIZES"]
 
-#: ``--figures``: none (tables only), key (default: plan, every collector and chord at its
-#: governing case, unit shear along the spans, the unit-shear maps and the MDD diagrams of
-#: the base cases) or all (also those of every case, and the deflected shapes).
+#: ``--figures``: none (tables only), key (default: the figures that carry design values:
+#: plan, every collector and chord at its governing case, unit shear along the spans of
+#: the base cases) or all (also the unit shear along the spans of every case, the MDD
+#: diagrams, the finite-element unit-shear maps, the deflected shapes, and the plan as SVG).
 FIGURE_CHOICES = ("none", "key", "all")
 #: ``--page-size``: paper (width, height) in inches; Letter by default.
 PAGE_SIZES = {"letter": (8.5, 11.0), "a4": (8.27, 11.69)}
@@ -292,7 +293,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     for case_name, case in semi.items():
         for zone, item in case.get("unit_shear_by_zone", {}).items():
             rows.append([case_name, zone, item["value"], f"({item['at'][0]:.4g}, {item['at'][1]:.4g})"])
-    tables["unit_shear"] = (["case", "zone", f"max unit shear ({units['unit_shear']})", f"at ({p})"], rows)
+    tables["unit_shear"] = (["case", "zone", f"largest element value ({units['unit_shear']}); may be a singular peak",
+                             f"at ({p})"], rows)
     tables.update(transfer_tables(doc, set(_base_cases(doc).values())))
     rows = []
     for m, method in doc["assumptions"].items():
@@ -519,12 +521,14 @@ def build_report(doc: dict, results=None, figures: str = "all") -> Report:
     not_run = [f"{a}: {r}" for a, r in doc.get("unavailable", {}).items()]
     if not_run:
         report.add("Assumptions not run", *not_run)
-    report.add("Plan drawing", FigureSpec("plan", "Plan", "plan_figure", {}, svg=True, local=True))
+    # The vector copy (inline in the HTML, zoomable) is a second drawing: with --figures all.
+    report.add("Plan drawing", FigureSpec("plan", "Plan", "plan_figure", {}, svg=figures == "all", local=True))
     report.add("Materials and wall stiffness", tab("materials"), tab("stiffness"))
     report.add("Loads and load cases", tab("loads"), tab("cases"))
     report.add("Flexibility (ASCE 7-16 §12.3.1)", tab("classification"),
                "The same check by beam theory on the flexible method's simple spans (chord bending and sheathing "
-               "shear; no finite-element model):", tab("span_deflection"), *_span_deflection_specs(doc, results))
+               "shear; no finite-element model):", tab("span_deflection"),
+               *(_span_deflection_specs(doc, results) if figures == "all" else ()))
     report.add("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", IRREGULARITY_TEXT, tab("irregularities"))
     report.add("Wall forces", "Largest magnitude over the cases of each assumption; design = envelope over the "
                "assumptions the code allows for the load direction.", tab("walls"))
@@ -532,7 +536,7 @@ def build_report(doc: dict, results=None, figures: str = "all") -> Report:
     report.add("Chords", tab("chords"), MEMBER_TEXT, *_member_specs(doc, "chords"))
     report.add("Unit shear along the spans", UNIT_SHEAR_TEXT,
                *(_unit_shear_specs(doc, results, base, figures) if figures != "none" else ()),
-               tab("unit_shear"), *_map_specs(doc, results, base, "shear"))
+               tab("unit_shear"), *(_map_specs(doc, results, base, "shear") if figures == "all" else ()))
     if doc.get("drift"):
         report.add("Story drift (ASCE 7-16 §12.8.6, §12.12.1)", doc["drift"]["note"], tab("drift"))
     if doc.get("engineer_envelope"):
@@ -542,7 +546,8 @@ def build_report(doc: dict, results=None, figures: str = "all") -> Report:
     report.add("Notes per case", tab("case_notes"))
     if doc.get("sensitivity"):
         report.add("Sensitivity to the diaphragm stiffness", SENSITIVITY_TEXT, *sensitivity_tables(doc))
-    report.add("Deflected shape", *_map_specs(doc, results, base, "deflected"))
+    if figures == "all":
+        report.add("Deflected shape", *_map_specs(doc, results, base, "deflected"))
     report.add("Equilibrium residuals", tab("residuals"))
     report.add("Methods and sources", *[f"{n}: {t}" for n, t in METHODS_TEXT])
     report.add("Assumptions and limitations", *LIMITATIONS_TEXT,
@@ -697,7 +702,6 @@ def _member_specs(doc: dict, group: str) -> list[FigureSpec]:
 def _span_deflection_specs(doc: dict, results) -> list[FigureSpec]:
     if results is None or results.classification is None:
         return []
-    base = set(_base_cases(doc).values())
     specs = []
     for axis, check in results.classification.directions.items():
         by_case: dict[str, list] = {}
@@ -713,7 +717,7 @@ def _span_deflection_specs(doc: dict, results) -> list[FigureSpec]:
                                            "disp_factor": results.units.displacement_out(1.0),
                                            "length_scale": results.plan.length_scale,
                                            "length_unit": results.plan.length_unit},
-                level="key" if case_name in base else "all"))
+                level="all"))  # the classification table carries the values
     return specs
 
 
@@ -726,7 +730,7 @@ def _map_specs(doc: dict, results, base: dict[str, str], kind: str) -> list[Figu
     scale = 1.0 / plan.length_scale
     corners = 3 if mesh.element_type.startswith("tri") else 4
     cells = mesh.elements[:, :corners]
-    key = set(base.values()) if kind == "shear" else set()  # deflected shapes: --figures all
+    key: set[str] = set()  # the maps and deflected shapes: --figures all (the span diagrams carry the design values)
     specs = []
     for j, case in enumerate(solution.cases):
         level = "key" if case.name in key else "all"
@@ -906,8 +910,8 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
     (width, height) in inches.
 
     With enough figures to pay for starting them, ``workers`` − 1 separate Python
-    processes draw a share each while this one draws its own (None: as many as the
-    machine has cores, at most 4). A worker runs planshear/figures.py alone (numpy and
+    processes draw a share each while this one draws its own (None: one per idle core,
+    see :func:`_helpers`). A worker runs planshear/figures.py alone (numpy and
     matplotlib, not the whole package, and nothing of the calling program) on a pickle of
     plain data; a batch whose worker fails is drawn here instead."""
     from .figures import render
@@ -917,11 +921,10 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
         return {}
     folder.mkdir(parents=True, exist_ok=True)
     sizes: dict[str, tuple[float, float]] = {}
-    workers = min(4, os.cpu_count() or 1) if workers is None else workers
     start = time.perf_counter()
     local = [s for s in specs if s.local]
     shared = [s for s in specs if not s.local]
-    helpers = workers - 1 if workers > 1 and len(shared) >= PARALLEL_FROM else 0
+    helpers = _helpers(workers) if len(shared) >= PARALLEL_FROM else 0
     # Every (helpers + 1)-th figure to each process (the costly maps come in pairs, so they
     # are spread); this process also draws the plan, so it takes a smaller share.
     batches = [shared[k::helpers + 1] for k in range(helpers + 1)]
@@ -954,6 +957,21 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
     if timings is not None:
         timings["figures (wall time)"] = time.perf_counter() - start
     return sizes
+
+
+def _helpers(workers: int | None) -> int:
+    """Worker processes to start besides this one: ``workers`` − 1 when given; else one per
+    idle core (cores less the one-minute load average, which counts this process), at
+    most 3. On a busy machine a helper only adds its start-up (about a second of numpy and
+    matplotlib imports) to work that has no free core to run on."""
+    if workers is not None:
+        return max(0, workers - 1)
+    cores = os.cpu_count() or 1
+    try:
+        idle = cores - os.getloadavg()[0]
+    except OSError:  # no load average on this platform
+        idle = cores - 1
+    return max(0, min(3, cores - 1, int(idle + 0.5)))
 
 
 def _start_workers(batches: list[list[FigureSpec]], folder: Path) -> list:

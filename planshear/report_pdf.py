@@ -18,6 +18,7 @@ letters and mathematical signs are spelled out in the PDF (Ω0 → Omega0, δ �
 
 from __future__ import annotations
 
+import functools
 import textwrap
 import unicodedata
 from dataclasses import dataclass, field
@@ -194,8 +195,11 @@ def _table_setting(layout: _Layout, table) -> tuple[bool, float, list[str], int]
     for k, (landscape, size, lines) in enumerate(made):
         if lines is None:
             continue
-        following = next((m[2] for m in made[k + 1:] if m[2] is not None), None)
-        if following is None or len(lines[0]) <= 1.3 * len(following[0]):
+        following = next((m for m in made[k + 1:] if m[2] is not None), None)
+        # Turning the page costs less than a smaller type: wrap up to 1.3 × the lines
+        # rather than turn, up to 2 × rather than shrink.
+        allowed = 1.3 if following is not None and following[0] != landscape else 2.0
+        if following is None or len(lines[0]) <= allowed * len(following[2][0]):
             return landscape, size, lines[0], lines[1]
     landscape, size = TABLE_SETTINGS[-1]
     chars = int(layout.width(landscape) * 72 / (size * MONO_EM))
@@ -286,24 +290,45 @@ def _figure_box(layout: _Layout, size: tuple[float, float]) -> tuple[float, floa
 
 
 def _place_table(layout: _Layout, setting) -> None:
+    """A table's lines, row by row; a row that does not fit goes to the next page (under
+    the repeated header) unless it is longer than a page."""
     landscape, size, lines, n_head = setting
     step = size * LEAD / 72
     want = "landscape" if landscape else "any"
     layout.ensure(step * min(len(lines), n_head + 3), want)
     head = lines[:n_head]
-    for k, line in enumerate(lines):
-        if layout.y + step > layout.bottom() + 1e-9:
-            layout.ensure(10.0 * layout.body_height(), want)  # forces a new page
-            for h in head:
-                layout.page.ops.append(("text", MARGIN_X, layout.y, h, {"fontsize": size, "family": "monospace"}))
-                layout.y += step
-        if k < n_head:
-            style = {"fontsize": size, "family": "monospace", "weight": "bold" if k < n_head - 1 else "medium"}
-        else:
-            style = {"fontsize": size, "family": "monospace"}
-        layout.page.ops.append(("text", MARGIN_X, layout.y, line, style))
+    mono = {"fontsize": size, "family": "monospace"}
+    for k, line in enumerate(head):
+        layout.page.ops.append(("text", MARGIN_X, layout.y, line, {**mono, "weight": "bold" if k < n_head - 1
+                                                                   else "medium"}))
         layout.y += step
+    for row in _rows(lines[n_head:]):
+        height = step * len(row)
+        if layout.y + height > layout.bottom() + 1e-9 and height < layout.body_height(landscape) / 2:
+            layout.ensure(10.0 * layout.body_height(), want)  # forces a new page
+            for k, line in enumerate(head):
+                layout.page.ops.append(("text", MARGIN_X, layout.y, line, {**mono, "weight": "bold"
+                                                                           if k < n_head - 1 else "medium"}))
+                layout.y += step
+        for line in row:
+            if layout.y + step > layout.bottom() + 1e-9:  # a row longer than half a page: split it
+                layout.ensure(10.0 * layout.body_height(), want)
+            layout.page.ops.append(("text", MARGIN_X, layout.y, line, mono))
+            layout.y += step
     layout.y += 0.12
+
+
+def _rows(body: list[str]) -> list[list[str]]:
+    """The body lines of a table grouped by row (rows of several lines are separated by a
+    blank line, which stays with the row before it)."""
+    if not any(not line.strip() for line in body):
+        return [[line] for line in body]
+    rows: list[list[str]] = [[]]
+    for line in body:
+        rows[-1].append(line)
+        if not line.strip():
+            rows.append([])
+    return [r for r in rows if r]
 
 
 def _place_figure(layout: _Layout, spec, size: tuple[float, float]) -> None:
@@ -387,16 +412,27 @@ def _pixels(figures_dir: Path, name: str) -> np.ndarray:
         pixels = np.load(raw)
         raw.unlink()
         return pixels
-    from PIL import Image
+    from matplotlib.image import imread
 
-    with Image.open(figures_dir / f"{name}.png") as image:
-        return np.asarray(image.convert("RGB"))
+    return imread(figures_dir / f"{name}.png")[..., :3]
+
+
+@functools.cache
+def _unsampled():
+    """An image artist in a box of the page whose pixels go into the PDF as they are
+    (matplotlib's BboxImage would resample them to 72 dots per inch)."""
+    from matplotlib.image import BboxImage
+
+    class UnsampledImage(BboxImage):
+        def _check_unsampled_image(self):
+            return True
+
+    return UnsampledImage
 
 
 def _draw_page(page: _Page, figures_dir: Path, block, number: int, count: int):
     """One laid-out page as a matplotlib figure."""
     from matplotlib.figure import Figure
-    from matplotlib.image import BboxImage
     from matplotlib.lines import Line2D
     from matplotlib.patches import Rectangle
     from matplotlib.transforms import Bbox, TransformedBbox
@@ -411,7 +447,7 @@ def _draw_page(page: _Page, figures_dir: Path, block, number: int, count: int):
         elif kind == "image":  # an image artist in a box of the page: no axes to set up
             _, x, y, iw, ih, name = op
             box = Bbox.from_bounds(x / w, 1 - (y + ih) / h, iw / w, ih / h)
-            image = BboxImage(TransformedBbox(box, fig.transFigure), interpolation="none")
+            image = _unsampled()(TransformedBbox(box, fig.transFigure), interpolation="none")
             image.set_data(_pixels(figures_dir, name))
             fig.add_artist(image)
         elif kind == "rule":

@@ -198,4 +198,6 @@ def test_figures_none_key_all(small_package, tmp_path):
     assert main(["run", str(plan_file), "--out", str(tmp_path / "k"), "--quiet"]) == 0
     key = {p.name for p in (tmp_path / "k" / "figures").glob("*.png")}
     assert "plan.png" in key and key < all_figures
+    assert (out / "figures" / "plan.svg").exists() and not (tmp_path / "k" / "figures" / "plan.svg").exists()
+    assert "<svg" in (out / "report.html").read_text(encoding="utf-8")  # --figures all: the plan inline as SVG
     assert not list((tmp_path / "k" / "figures").glob(".*"))  # no working files left behind
