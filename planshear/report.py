@@ -1065,7 +1065,7 @@ h2{font-size:1.15rem;margin-top:2rem;border-bottom:1px solid #999}
 table{border-collapse:collapse;font-size:.8rem;margin:.5rem 0 1rem;font-family:'DejaVu Sans Mono',monospace}
 th,td{border:1px solid #aaa;padding:.15rem .4rem;text-align:right;vertical-align:top}
 th{background:#ece8dc}
-td.text,th{white-space:normal;overflow-wrap:anywhere;max-width:24rem}
+td.text,th{white-space:normal;overflow-wrap:break-word;max-width:24rem}
 td:first-child,th:first-child,td.text{text-align:left}
 table.titleblock{width:100%;font-family:'DejaVu Sans',sans-serif;border:2px solid #1f6f8b;border-left:8px solid #1f6f8b}
 table.titleblock td{text-align:left;border:1px solid #9fb9c3;background:#fff;padding:.2rem .5rem}

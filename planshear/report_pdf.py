@@ -37,6 +37,7 @@ MONO_EM = 0.6  # advance of Courier per point of size
 SANS_EM = 0.52  # average advance of Helvetica text per point of size (for wrapping, a little generous)
 BODY_PT = 8.0
 LEAD = 1.3  # line height / type size
+ASCENT = 0.8  # top of the line to its baseline / type size (Helvetica and Courier caps: 0.72)
 #: (landscape, type size in pt) tried in turn for a table until it fits the width.
 TABLE_SETTINGS = ((False, 6.5), (True, 6.5), (True, 5.5), (True, 4.6))
 INK = "#222222"
@@ -441,9 +442,10 @@ def _draw_page(page: _Page, figures_dir: Path, block, number: int, count: int):
     fig = Figure(figsize=(w, h), facecolor="white")
     for op in page.ops:
         kind = op[0]
-        if kind == "text":
+        if kind == "text":  # on its baseline: a "top" alignment follows each line's own tallest glyph
             _, x, y, text, style = op
-            fig.text(x / w, 1 - y / h, text, va="top", **style)
+            baseline = y + ASCENT * style["fontsize"] / 72
+            fig.text(x / w, 1 - baseline / h, text, va="baseline", **style)
         elif kind == "image":  # an image artist in a box of the page: no axes to set up
             _, x, y, iw, ih, name = op
             box = Bbox.from_bounds(x / w, 1 - (y + ih) / h, iw / w, ih / h)
