@@ -227,14 +227,7 @@ def layout_report(report, sizes: dict, paper: tuple[float, float]) -> list[_Page
     layout.new_page()
     layout.text([latin(report.title)], 14, weight="bold")
     layout.y += 0.08
-    chars = int(layout.width() * 72 / (9 * SANS_EM)) - 4
-    caution = textwrap.wrap(latin(report.caution), chars)
-    top = layout.y
-    layout.y += 0.08
-    layout.page.ops.append(("box", MARGIN_X - 0.02, top, layout.width() + 0.04,
-                            len(caution) * 9 * LEAD / 72 + 0.16, {"lw": 1.6}))
-    layout.text([f"  {line}" for line in caution], 9, weight="bold")
-    layout.y += 0.2
+    _caution(layout, report.caution)
     for section in report.sections:
         blocks = [b for b in section.blocks if not isinstance(b, FigureSpec) or b.name in sizes]
         if not blocks and any(isinstance(b, FigureSpec) for b in section.blocks):
@@ -262,7 +255,21 @@ def layout_report(report, sizes: dict, paper: tuple[float, float]) -> list[_Page
                 _place_figure(layout, block, sizes[block.name])
             else:
                 layout.paragraph(str(block))
+    _caution(layout, report.caution)  # first and last, as in the HTML
     return layout.pages
+
+
+def _caution(layout: _Layout, caution: str) -> None:
+    """The caution in a heavy box across the text width."""
+    chars = int(layout.width() * 72 / (9 * SANS_EM)) - 4
+    lines = textwrap.wrap(latin(caution), chars)
+    height = len(lines) * 9 * LEAD / 72 + 0.16
+    layout.ensure(height + 0.3)
+    top = layout.y
+    layout.y += 0.08
+    layout.page.ops.append(("box", MARGIN_X - 0.02, top, layout.width() + 0.04, height, {"lw": 1.6}))
+    layout.text([f"  {line}" for line in lines], 9, weight="bold")
+    layout.y += 0.2
 
 
 def _first_height(layout: _Layout, block, settings: dict, sizes: dict) -> float:
