@@ -296,6 +296,9 @@ def _version(module: str) -> str | None:
         return None
 
 
+REPORT_SECTION = "## Report writing"
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m benchmarks", description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="small sizes only; RESULTS.md is not rewritten")
@@ -317,9 +320,11 @@ def main(argv: list[str] | None = None) -> int:
     for line in _targets(records):
         print(line)
     if not args.quick and not args.sizes:
+        # The sections of python -m benchmarks.sweep and python -m benchmarks.report are kept as they were.
         path = HERE / "RESULTS.md"
         old = path.read_text(encoding="utf-8") if path.exists() else ""
-        sweep = old[old.index("<!-- sweep:begin -->"):] if "<!-- sweep:begin -->" in old else ""  # benchmarks.sweep's
-        path.write_text(_markdown(records, exponents) + ("\n" + sweep if sweep else ""), encoding="utf-8")
+        starts = [old.index(mark) for mark in ("<!-- sweep:begin -->", REPORT_SECTION) if mark in old]
+        kept = old[min(starts):] if starts else ""
+        path.write_text(_markdown(records, exponents) + ("\n" + kept if kept else ""), encoding="utf-8")
         print(f"wrote {HERE / 'RESULTS.md'}")
     return 0 if all("times" in r for r in records) else 1

@@ -43,12 +43,14 @@ def _parser() -> argparse.ArgumentParser:
     run.add_argument("--mesh-units", choices=MESH_UNIT_CHOICES, default="si",
                      help="units of the mesh files: si (N, m; default, for a finite-element program) or plan "
                           "(the units of results.json, e.g. ft, in, kip)")
+    _report_options(run)
     demo = sub.add_parser("demo", help="analyze the built-in demo plan")
     demo.add_argument("--out", default="planshear-demo", help="output folder (default: planshear-demo)")
     demo.add_argument("--format", choices=("text", "json"), default="text")
     demo.add_argument("--quiet", action="store_true")
     demo.add_argument("--no-report", action="store_true", help="write results.json and mesh files only")
     demo.add_argument("--mesh-units", choices=MESH_UNIT_CHOICES, default="si", help="units of the mesh files: si or plan")
+    _report_options(demo)
     imp = sub.add_parser("import", help="read a plan drawing (DXF) and write a plan file with placeholders to fill in")
     imp.add_argument("drawing", help="plan drawing (.dxf)")
     imp.add_argument("--out", required=True, help="plan file to write (.toml); never replaced without --force")
@@ -99,6 +101,14 @@ def _import(args) -> int:
     return EXIT_OK
 
 
+def _report_options(command) -> None:
+    command.add_argument("--figures", choices=("none", "key", "all"), default="key",
+                         help="figures in the report: none, key (default: plan, every collector and chord at its "
+                              "governing case, unit shear along the spans, maps of the base cases) or all (every case)")
+    command.add_argument("--page-size", choices=("letter", "a4"), default="letter",
+                         help="paper of report.pdf and of the printed HTML (default: letter)")
+
+
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
@@ -132,7 +142,8 @@ def main(argv: list[str] | None = None) -> int:
         progress = _progress_printer(quiet=args.quiet or args.format == "json")
         results = analyze(plan, progress=progress)
         progress("writing results, report, figures and mesh files")
-        results.write(out, report=not args.no_report, mesh_units=args.mesh_units)
+        results.write(out, report=not args.no_report, mesh_units=args.mesh_units, figures=args.figures,
+                      page_size=args.page_size)
         progress("done")
         if args.format == "json":
             print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))

@@ -1,23 +1,37 @@
 """Figures for the review package (matplotlib, object API only: no global state).
 
-Visual style of our own: each assumption has a colour and a line style that stay
-distinguishable in black-and-white print (flexible: long dashes with squares; rigid:
-dash-dot with triangles; semi-rigid: solid with circles). Figures are written as PNG and
-SVG; the SVG text is also returned for inlining in the HTML report.
+This file imports nothing from planshear at module level: the figure worker processes
+run it alone (``python -c 'runpy.run_path(<this file>)' <batch>``), with numpy and
+matplotlib only, which starts in a third of the time the whole package takes.
+
+Palette and line styles (colour-blind safe, distinguishable in black-and-white print):
+each assumption has a colour, a line style and a marker (flexible: orange, long dashes,
+squares; rigid: purple, dash-dot, triangles; semi-rigid: blue-green, solid, circles);
+walls red, members green, grid grey. The same colours are used in the HTML report.
+
+Every figure function takes plain data (numbers, arrays, dicts, plan-level dataclasses)
+so that :func:`render` can draw it in a separate process. :func:`render` draws a figure
+once: PNG for the PDF pages and the HTML report (and, where asked, SVG for the vector
+plan drawing). Figures use fixed margins instead of tight layout, which measured as
+about a quarter of the drawing time.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.collections import PolyCollection
 from matplotlib.figure import Figure
+from matplotlib.ticker import MaxNLocator
 
-__all__ = ["STYLE", "FigureFile", "plan_figure", "collector_figure", "chord_figure", "shear_map_figure",
-           "deflected_figure", "span_deflection_figure", "save"]
+__all__ = ["STYLE", "plan_figure", "member_diagram_figure", "unit_shear_figure", "shear_map_figure",
+           "deflected_figure", "span_deflection_figure", "line_gaps", "broken_at", "render", "DPI"]
+
+#: Resolution of the PNG figures (dots per inch): sharp enough on paper at the 7-inch
+#: width of a page; the PDF's time to compress the images grows with its square.
+DPI = 130
 
 STYLE = {
     "flexible": {"color": "#b35806", "linestyle": (0, (6, 2)), "marker": "s"},
@@ -29,39 +43,41 @@ PAPER = "#fbfaf6"
 WALL = "#c0392b"
 MEMBER = "#16a085"
 GRID = "#9a9a9a"
+SINGULAR = "#d9d9d9"  # zones of singular finite-element peaks
 
 
-@dataclass(frozen=True)
-class FigureFile:
-    name: str  # file stem under figures/
-    title: str
-    svg: str  # SVG text for inlining
-
-
-def _figure(width: float = 7.5, height: float = 4.5) -> tuple[Figure, object]:
+def _figure(width: float = 7.5, height: float = 4.5, margins: tuple[float, float, float, float] | None = None
+            ) -> tuple[Figure, object]:
+    """A figure with one axes; ``margins`` (left, bottom, right, top) in inches, default
+    room for tick labels, axis labels and a title."""
     fig = Figure(figsize=(width, height), facecolor=PAPER)
     FigureCanvasAgg(fig)
-    ax = fig.add_subplot(1, 1, 1)
+    left, bottom, right, top = margins or (0.75, 0.55, 0.2, 0.35)
+    ax = fig.add_axes([left / width, bottom / height, 1 - (left + right) / width, 1 - (bottom + top) / height])
     ax.set_facecolor("white")
     for spine in ax.spines.values():
         spine.set_color(INK)
     ax.tick_params(colors=INK, labelsize=8)
+    # Up to 7 ticks per axis: ticks are most of an axes' drawing time.
+    ax.xaxis.set_major_locator(MaxNLocator(7))
+    ax.yaxis.set_major_locator(MaxNLocator(7))
     return fig, ax
 
 
-def save(fig: Figure, folder: Path, name: str, title: str) -> FigureFile:
-    """Write ``name``.png and ``name``.svg into ``folder``; return the SVG text."""
-    folder.mkdir(parents=True, exist_ok=True)
-    fig.tight_layout()
-    fig.savefig(folder / f"{name}.png", dpi=110, facecolor=fig.get_facecolor())
-    # No date in the metadata, so that a rerun writes the same files.
-    fig.savefig(folder / f"{name}.svg", facecolor=fig.get_facecolor(), metadata={"Date": None})
-    svg = (folder / f"{name}.svg").read_text(encoding="utf-8")
-    svg = svg[svg.index("<svg"):]  # drop the XML prolog and doctype for inlining
-    start, end = svg.find("<metadata>"), svg.find("</metadata>")
-    if start >= 0 and end > start:
-        svg = svg[:start] + svg[end + len("</metadata>"):]
-    return FigureFile(name, title, svg)
+def _labels(fig: Figure, ax, title: str, xlabel: str = "", ylabel: str = "") -> None:
+    """Title and axis labels as figure text at fixed places around the axes (matplotlib's
+    own placement measures every tick label first: a quarter of a diagram's drawing time).
+    The margins of :func:`_figure` leave room for them."""
+    box = ax.get_position()
+    width, height = fig.get_size_inches()
+    fig.text(0.5 * (box.x0 + box.x1), box.y1 + 0.07 / height, title, ha="center", va="bottom", fontsize=9,
+             color=INK)
+    if xlabel:
+        fig.text(0.5 * (box.x0 + box.x1), box.y0 - 0.3 / height, xlabel, ha="center", va="top", fontsize=8,
+                 color=INK)
+    if ylabel:
+        fig.text(box.x0 - 0.55 / width, 0.5 * (box.y0 + box.y1), ylabel, ha="right", va="center", rotation=90,
+                 rotation_mode="anchor", fontsize=8, color=INK)
 
 
 #: Colour of loads on the plan (Dark2 orange: apart from the assumption colours and the wall red).
@@ -151,7 +167,7 @@ def plan_figure(doc: dict, plan) -> Figure:
     units = OutputUnits.for_plan(plan.length_unit)
     unit = plan.length_unit
     scale = 1.0 / plan.length_scale
-    fig, ax = _figure(7.5, 6.0)
+    fig, ax = _figure(7.5, 6.0, (0.1, 0.1, 0.1, 0.45))  # axes off: room for the two-line title only
     outline = np.vstack([plan.outline, plan.outline[:1]]) * scale
     (x0, y0), (x1, y1) = outline.min(axis=0), outline.max(axis=0)
     width, depth = x1 - x0, y1 - y0
@@ -163,7 +179,6 @@ def plan_figure(doc: dict, plan) -> Figure:
     ax.set_title("Plan: walls (red), collectors (green dashed; dotted: implied in the semi-rigid model),\n"
                  "loads (orange; wind shown for +x and +y), zones (hatched), CM center of mass, CR center of rigidity",
                  fontsize=8)
-    fig.tight_layout()  # final layout before any label is measured
     labels = _LabelPlacer(fig, ax)
 
     ax.fill(outline[:, 0], outline[:, 1], color="#f1eee4", zorder=0)
@@ -300,48 +315,112 @@ def _load_parts(plan, load):
     return areas, lines, [(x, y, p) for x, y, p, _ in points]
 
 
-def _diagram_figure(doc: dict, cases: dict[str, str], pick, height: float, xlabel: str, ylabel: str,
-                    title: str, annotate: bool) -> Figure:
-    """One diagram per assumption (assumption → case name) with its peak marked;
-    ``pick(case_doc)`` returns (points [[s, value], …], peak position, peak value) or None."""
-    fig, ax = _figure(7.5, height)
-    for assumption, case_name in cases.items():
-        picked = pick(doc["assumptions"].get(assumption, {}).get("cases", {}).get(case_name, {}))
-        if not picked or len(picked[0]) == 0:
-            continue
-        points, peak_at, peak = picked
-        diagram = np.array(points, dtype=float)
-        style = STYLE[assumption]
-        ax.plot(diagram[:, 0], diagram[:, 1], color=style["color"], ls=style["linestyle"], lw=1.5,
-                label=f"{assumption} ({case_name})")
-        ax.plot(peak_at, peak, marker=style["marker"], color=style["color"], ms=7, mfc="white")
-        if annotate:
-            ax.annotate(f"{peak:.1f}", (peak_at, peak), xytext=(4, 4), textcoords="offset points", fontsize=7,
-                        color=style["color"])
+def member_diagram_figure(title: str, xlabel: str, ylabel: str, series: list[dict], marks: list[dict],
+                          note: str = "") -> Figure:
+    """Axial force along a collector or chord. ``series``: dicts with ``assumption``,
+    ``label``, ``points`` ([[s, N], …], NaN rows break the line), ``governs`` (drawn
+    heavy) and optional ``reversed`` (a seismic diagram with the load reversed: dotted); ``marks``: dicts with ``assumption``, ``s``, ``value`` and ``text`` (the design
+    value, annotated beside its point)."""
+    rows = _key_rows(len(series))
+    bottom = 0.62 + KEY_ROW * rows + (0.16 if note else 0.0)
+    fig, ax = _figure(7.5, 2.4 + bottom, (0.75, bottom, 0.2, 0.3))
+    entries = []
+    for item in series:
+        diagram = np.asarray(item["points"], dtype=float).reshape(-1, 2)
+        style = STYLE[item["assumption"]]
+        line = {"color": style["color"], "ls": (0, (1, 1.2)) if item.get("reversed") else style["linestyle"],
+                "lw": 2.2 if item["governs"] else 0.9, "alpha": 1.0 if item["governs"] else 0.75}
+        ax.plot(diagram[:, 0], diagram[:, 1], **line)
+        entries.append((item["label"], line))
+    _marks(ax, marks, bold=True)
     ax.axhline(0.0, color=INK, lw=0.6)
-    ax.set_xlabel(xlabel, fontsize=8)
-    ax.set_ylabel(ylabel, fontsize=8)
-    ax.legend(fontsize=7, frameon=False)
-    ax.set_title(title, fontsize=9)
+    ax.margins(y=0.25)  # room for the design-value labels
+    _labels(fig, ax, title, xlabel, ylabel)
+    _key(fig, entries, 0.06 + (0.16 if note else 0.0))
+    if note:
+        fig.text(0.01, 0.04 / fig.get_size_inches()[1], note, fontsize=6.5, color=INK)
     return fig
 
 
-def collector_figure(doc: dict, line: str, cases: dict[str, str]) -> Figure:
-    """Collector force along a line under each assumption for the given cases
-    (assumption → case name), peaks marked; the diagram is broken where the line crosses
-    a gap (an opening or outside the outline), since nothing is carried there."""
-    units = doc["units"]
-    gaps = _line_gaps(doc, line)
-
-    def pick(case_doc):
-        data = case_doc.get("lines", {}).get(line)
-        return data and (_broken_at(data["collector"], gaps), data["collector_peak_at"], data["collector_peak"])
-
-    return _diagram_figure(doc, cases, pick, 3.2, f"position along line {line} ({units['position']})",
-                           f"N ({units['force']}), tension +", f"Collector force along line {line}", True)
+#: Height of a row of the key under a diagram (in) and entries per row.
+KEY_ROW = 0.16
+KEY_COLUMNS = 3
 
 
-def _line_gaps(doc: dict, line: str) -> list[tuple[float, float]]:
+def _key_rows(entries: int) -> int:
+    return -(-entries // KEY_COLUMNS)
+
+
+def _key(fig: Figure, entries: list[tuple[str, dict]], bottom: float) -> None:
+    """The key of a diagram along the bottom of the figure, ``bottom`` inches up: a short
+    stroke of each line style and its label, in rows (drawn directly: matplotlib's legend
+    measures and packs its boxes, an eighth of a diagram's drawing time)."""
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Rectangle
+
+    width, height = fig.get_size_inches()
+    column = (width - 0.9) / KEY_COLUMNS
+    rows = _key_rows(len(entries))
+    for k, (label, style) in enumerate(entries):
+        x = 0.75 + (k % KEY_COLUMNS) * column
+        y = bottom + (rows - 1 - k // KEY_COLUMNS) * KEY_ROW + 0.05
+        if style.get("patch"):
+            fig.add_artist(Rectangle((x / width, (y - 0.04) / height), 0.3 / width, 0.08 / height,
+                                     transform=fig.transFigure, color=style["patch"], lw=0))
+        else:
+            fig.add_artist(Line2D([x / width, (x + 0.3) / width], [y / height] * 2, transform=fig.transFigure,
+                                  **style))
+        fig.text((x + 0.36) / width, y / height, label, fontsize=6.5, va="center", color=INK)
+
+
+def _marks(ax, marks: list[dict], bold: bool) -> None:
+    """Marked values: a hollow marker and a boxed label on the side of the point that
+    faces the middle of the axes (labels near the ends stay inside the figure)."""
+    if not marks:
+        return
+    ax.autoscale_view()
+    lo, hi = ax.get_xlim()
+    for mark in marks:
+        style = STYLE[mark["assumption"]]
+        ax.plot([mark["s"]], [mark["value"]], marker=style["marker"], color=style["color"], ms=8, mfc="white", mew=1.6)
+        right = mark["s"] > 0.5 * (lo + hi)
+        up = mark["value"] >= 0
+        ax.annotate(mark["text"], (mark["s"], mark["value"]), xytext=(-8 if right else 8, 8 if up else -10),
+                    textcoords="offset points", ha="right" if right else "left", va="bottom" if up else "top",
+                    fontsize=7, color=INK, weight="bold" if bold else "normal",
+                    bbox={"boxstyle": "round,pad=0.2", "fc": "white", "ec": style["color"], "lw": 0.8})
+
+
+def unit_shear_figure(title: str, xlabel: str, ylabel: str, series: list[dict], shaded: list[tuple[float, float]],
+                      marks: list[dict], note: str) -> Figure:
+    """Unit shear along a span: ``series`` dicts with ``assumption``, ``label``, ``s``,
+    ``values`` and optional ``thin`` (a secondary curve); ``shaded`` (s0, s1) zones where
+    finite-element values are singular peaks (not design values); ``marks`` as in
+    :func:`member_diagram_figure`."""
+    rows = _key_rows(len(series) + bool(shaded))
+    bottom = 0.62 + KEY_ROW * rows + 0.16
+    fig, ax = _figure(7.5, 2.7 + bottom, (0.75, bottom, 0.2, 0.3))
+    for s0, s1 in shaded:
+        ax.axvspan(s0, s1, color=SINGULAR, lw=0, zorder=0)
+    entries = []
+    for item in series:
+        style = STYLE[item["assumption"]]
+        thin = item.get("thin", False)
+        line = {"color": style["color"], "ls": ":" if thin else style["linestyle"], "lw": 0.9 if thin else 1.6}
+        ax.plot(item["s"], item["values"], **line)
+        entries.append((item["label"], line))
+    if shaded:
+        entries.append(("singular finite-element peaks: not design values", {"patch": SINGULAR}))
+    _marks(ax, marks, bold=False)
+    ax.set_ylim(bottom=0.0)
+    ax.margins(y=0.2)
+    _labels(fig, ax, title, xlabel, ylabel)
+    _key(fig, entries, 0.22)
+    fig.text(0.01, 0.04 / fig.get_size_inches()[1], note, fontsize=6.5, color=INK)
+    return fig
+
+
+def line_gaps(doc: dict, line: str) -> list[tuple[float, float]]:
     """Gaps (start, end) between the pieces of a line, from the idealized results."""
     for method in doc["assumptions"].values():
         for case_doc in method["cases"].values():
@@ -351,7 +430,7 @@ def _line_gaps(doc: dict, line: str) -> list[tuple[float, float]]:
     return []
 
 
-def _broken_at(points: list, gaps: list[tuple[float, float]]) -> list:
+def broken_at(points: list, gaps: list[tuple[float, float]]) -> list:
     """Diagram points with a NaN row wherever consecutive points straddle a gap."""
     out: list = []
     for point in points:
@@ -361,72 +440,58 @@ def _broken_at(points: list, gaps: list[tuple[float, float]]) -> list:
     return out
 
 
-def chord_figure(doc: dict, edge: str, cases: dict[str, str]) -> Figure:
-    """Chord force along an outline edge (or interior chord) under each assumption."""
-    units = doc["units"]
-
-    def pick(case_doc):
-        data = case_doc.get("chords", {}).get(edge)
-        return data and (data["diagram"], data["peak_at"], data["peak"])
-
-    return _diagram_figure(doc, cases, pick, 3.0, f"position along {edge} from its first corner ({units['position']})",
-                           f"chord force ({units['force']}), tension +", f"Chord force, {edge}", False)
-
-
-def shear_map_figure(plan, mesh, unit_shear: np.ndarray, case: str, units: dict, factor: float) -> Figure:
-    """|Nxy| per element (output units) with the maximum marked."""
-    scale = 1.0 / plan.length_scale
-    corners = 3 if mesh.element_type.startswith("tri") else 4
-    polygons = mesh.nodes[mesh.elements[:, :corners]] * scale
-    values = unit_shear * factor
-    fig, ax = _figure(7.5, 5.0)
+def shear_map_figure(polygons: np.ndarray, values: np.ndarray, title: str, label: str) -> Figure:
+    """Unit shear per element: ``polygons`` (n_e, corners, 2) in plan units, ``values``
+    (n_e,) in output units; the maximum marked."""
+    fig, ax = _figure(7.5, 5.0, (0.7, 0.5, 0.3, 0.35))
     collection = PolyCollection(polygons, array=values, cmap="cividis", edgecolors="face", linewidths=0.1)
-    collection.set_rasterized(True)  # keeps the SVG small
+    collection.set_rasterized(True)  # keeps vector output small
     ax.add_collection(collection)
     cbar = fig.colorbar(collection, ax=ax, shrink=0.8)
-    cbar.set_label(f"unit shear |Nxy| ({units['unit_shear']})", fontsize=8)
+    cbar.set_label(label, fontsize=8)
     k = int(np.argmax(values))
     where = polygons[k].mean(axis=0)
     ax.plot(*where, marker="*", ms=12, color=WALL, mec="white")
-    ax.annotate(f"max {values[k]:.3g}", where, xytext=(6, 6), textcoords="offset points", fontsize=8, color=WALL)
+    ax.annotate(f"max {values[k]:.3g} (local; may be a singular peak)", where, xytext=(6, 6),
+                textcoords="offset points", fontsize=8, color=WALL)
     ax.autoscale_view()
     ax.set_aspect("equal")
-    ax.set_title(f"Unit shear, semi-rigid, {case} (element averages)", fontsize=9)
+    _labels(fig, ax, title)
     return fig
 
 
-def deflected_figure(plan, mesh, displacement: np.ndarray, case: str, units: dict, disp_factor: float) -> Figure:
-    """Outline before and after deformation (magnified), colored by displacement."""
-    scale = 1.0 / plan.length_scale
-    magnitude = np.hypot(displacement[:, 0], displacement[:, 1])
-    size = float(np.ptp(mesh.nodes, axis=0).max())
-    magnify = 0.08 * size / magnitude.max() if magnitude.max() > 0 else 1.0
-    moved = (mesh.nodes + magnify * displacement) * scale
-    fig, ax = _figure(7.5, 5.0)
-    corners = 3 if mesh.element_type.startswith("tri") else 4
-    collection = PolyCollection(moved[mesh.elements[:, :corners]], array=magnitude[mesh.elements[:, :corners]].mean(axis=1) * disp_factor,
-                                cmap="viridis", edgecolors="face", linewidths=0.1)
+def deflected_figure(moved: np.ndarray, values: np.ndarray, outline: np.ndarray, title: str, label: str) -> Figure:
+    """Deformed elements ``moved`` (n_e, corners, 2, plan units, magnified) coloured by
+    ``values`` (n_e,), with the undeformed ``outline`` (n, 2) dashed."""
+    fig, ax = _figure(7.5, 5.0, (0.7, 0.5, 0.3, 0.35))
+    collection = PolyCollection(moved, array=values, cmap="viridis", edgecolors="face", linewidths=0.1)
     collection.set_rasterized(True)
     ax.add_collection(collection)
-    outline = np.vstack([plan.outline, plan.outline[:1]]) * scale
-    ax.plot(outline[:, 0], outline[:, 1], color=INK, lw=0.8, ls="--")
+    closed = np.vstack([outline, outline[:1]])
+    ax.plot(closed[:, 0], closed[:, 1], color=INK, lw=0.8, ls="--")
     cbar = fig.colorbar(collection, ax=ax, shrink=0.8)
-    cbar.set_label(f"displacement ({units['displacement']})", fontsize=8)
+    cbar.set_label(label, fontsize=8)
     ax.autoscale_view()
     ax.set_aspect("equal")
-    ax.set_title(f"Deflected shape, semi-rigid, {case} (magnified ×{magnify:.3g}; dashed: undeformed)", fontsize=9)
+    _labels(fig, ax, title)
     return fig
 
 
-def span_deflection_figure(plan, spans, case: str, axis: str, units: dict, disp_factor: float) -> Figure:
+def span_deflection_figure(spans: list[dict], case: str, axis: str, units: dict, disp_factor: float,
+                           length_scale: float, length_unit: str) -> Figure:
     """The diaphragm's own deflection along the span for one load case (ASCE 7-16
     §12.3.1.3): in each span between lines of resistance, the displacement along the load
     averaged across the depth, relative to the straight line between the support drifts.
     MDD is marked where it occurs (filled marker, value and MDD/ADVE); the largest nodal
     value of the span (a local peak at a wall end, corner or load) is marked hollow and is
-    not used for the classification."""
-    scale = 1.0 / plan.length_scale
-    fig, ax = _figure(7.5, 4.2)
+    not used for the classification. ``spans``: the fields of
+    :class:`planshear.postprocess.classify` span checks as plain dicts (SI);
+    ``length_scale``: m per plan length unit."""
+    from types import SimpleNamespace
+
+    spans = [SimpleNamespace(**span) for span in spans]
+    scale = 1.0 / length_scale
+    fig, ax = _figure(7.5, 4.2, (0.75, 0.95, 0.2, 0.3))
     style = STYLE["semirigid"]
     s_index = 0 if axis == "y" else 1
     for span in spans:
@@ -450,9 +515,51 @@ def span_deflection_figure(plan, spans, case: str, axis: str, units: dict, disp_
     ax.plot([], [], marker="o", mfc="none", color=WALL, ls="none", label="largest nodal value (local, not classified on)")
     ax.plot([], [], color=style["color"], marker="o", label="averaged across the depth; MDD marked")
     ax.legend(fontsize=7, loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=2, frameon=False)
-    ax.set_xlabel(f"{'x' if axis == 'y' else 'y'} ({plan.length_unit})", fontsize=8)
-    ax.set_ylabel(f"deflection relative to supports ({units['displacement']})", fontsize=8)
-    ax.set_title(f"Diaphragm deflection along the span, semi-rigid, {case} (load along {axis})", fontsize=9)
+    _labels(fig, ax, f"Diaphragm deflection along the span, semi-rigid, {case} (load along {axis})",
+            f"{'x' if axis == 'y' else 'y'} ({length_unit})", f"deflection relative to supports ({units['displacement']})")
     fig.text(0.01, 0.01, "At a line of resistance the curve need not be zero: the support drift is the mean drift "
              "of the line's walls, and parts of the section away from them deflect more.", fontsize=6.5, color=INK)
     return fig
+
+
+def render(draw: str, kwargs: dict, folder: str, name: str, svg: bool = False) -> tuple[str, float, float]:
+    """Draw ``draw`` (a function of this module) with ``kwargs`` once and write
+    ``folder/name.png`` (and ``.svg`` if asked). Top-level and plain-data in and out, so a
+    process pool can run it. Returns (name, width, height) in inches."""
+    fig = globals()[draw](**kwargs)
+    folder_ = Path(folder)
+    folder_.mkdir(parents=True, exist_ok=True)
+    fig.savefig(folder_ / f"{name}.png", dpi=DPI, facecolor=fig.get_facecolor())
+    # The same pixels, raw, for the PDF pages (read and removed by planshear.report_pdf).
+    np.save(folder_ / f".{name}.rgb.npy", np.ascontiguousarray(np.asarray(fig.canvas.buffer_rgba())[..., :3]))
+    if svg:  # no date in the metadata, so that a rerun writes the same file
+        fig.savefig(folder_ / f"{name}.svg", facecolor=fig.get_facecolor(), metadata={"Date": None})
+    width, height = fig.get_size_inches()
+    return name, float(width), float(height)
+
+
+def _worker(batch: str) -> None:
+    """``python -m planshear.figures <batch>``: render the pickled jobs of ``batch`` and
+    write {name: (width, height)} next to it (``.out``)."""
+    import pickle
+
+    path = Path(batch)
+    jobs = pickle.loads(path.read_bytes())
+    sizes = {}
+    for job in jobs:
+        name, width, height = render(*job)
+        sizes[name] = (width, height)
+    path.with_suffix(".out").write_bytes(pickle.dumps(sizes))
+
+
+if __name__ == "__main__":
+    import sys
+
+    _worker(sys.argv[-1])
+
+
+def dc_map_figure(plan, checks) -> Figure:
+    """The demand/capacity map (drawn in the main process: it takes the plan and the checks)."""
+    from .figures_checks import dc_map_figure as draw
+
+    return draw(plan, checks)

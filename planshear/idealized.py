@@ -113,7 +113,9 @@ def _case_from_analogy(
         extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {}),
                # V(s)/ℓ(s) along each span direction (N/m, stations m) for the design checks of the zones
                "span_unit_shear": tuple((a.axis, a.stations, _unit_shear(a)) for a in (main, transverse)
-                                        if a is not None)},
+                                        if a is not None),
+               # V(s) and ℓ(s) of the span: the unit-shear diagram V/ℓ of the report.
+               "span_shear": (main.stations, main.shear, main.length_available)},
     )
 
 

@@ -235,6 +235,9 @@ class ClassificationFlags:
     adjacent_stiffness_ratio: float | None = None
 
 
+TITLE_BLOCK_KEYS = ("job", "engineer", "checker", "date", "revision")
+
+
 @dataclass(frozen=True, eq=False)
 class Splice:
     """A ``[[splice]]`` entry: a chord or collector splice at point ``at`` whose slip adds
@@ -307,6 +310,8 @@ class Plan:
     transfers: tuple[Transfer, ...] = ()
     splices: tuple[Splice, ...] = ()
     capacities: Capacities = field(default_factory=Capacities)
+    # [plan] job, engineer, checker, date, revision for the report's title block (text; absent keys left out).
+    title_block: tuple[tuple[str, str], ...] = ()
 
     def line(self, name: str) -> GridLine:
         for grid_line in self.grid_lines:
@@ -444,6 +449,24 @@ class _PlanBuilder:
 
     # -- sections ------------------------------------------------------------------------
 
+    def title_block(self, table: dict) -> tuple[tuple[str, str], ...]:
+        """[plan] job, engineer, checker, date and revision as text; the date may be a TOML
+        date (date = 2026-12-02) or text."""
+        import datetime
+
+        out = []
+        for key in TITLE_BLOCK_KEYS:
+            if key not in table:
+                continue
+            value = table[key]
+            if key == "date" and isinstance(value, datetime.date):
+                value = value.isoformat()[:10]
+            if not isinstance(value, str):
+                self.problem(f"plan.{key}", f"must be text or a date, got {value!r}; write e.g. {key} = \"2026-12-02\"")
+                continue
+            out.append((key, value.strip()))
+        return tuple(out)
+
     def build(self) -> Plan:
         doc = self.doc
         plan_table = doc["plan"]
@@ -456,6 +479,7 @@ class _PlanBuilder:
         self.scale = LENGTH_UNITS[unit]
         name = plan_table.get("name", Path(self.label).stem)
         code = plan_table.get("code", DEFAULT_EDITION)
+        title_block = self.title_block(plan_table)
         if code not in EDITIONS:
             self.problem("plan.code", f'"{code}" is not available; planshear implements {", ".join(EDITIONS)} '
                          "(ASCE 7-22 only where its clauses can be confirmed from the standard's text: not yet). "
@@ -557,6 +581,7 @@ class _PlanBuilder:
             mesh=mesh,
             classification=classification,
             collector_EA=collector_EA,
+            title_block=title_block,
             transfers=tuple(transfers),
             splices=tuple(splices),
             design_envelope=chosen,

@@ -1,5 +1,20 @@
-"""The review package: report.html (self-contained, figures inline as SVG), report.pdf
-(written directly with matplotlib), CSV tables and figures.
+"""The review package: report.html, report.pdf, CSV tables and figures.
+
+How the report is assembled (one content, two writers):
+
+- :func:`build_report` turns results.json (``doc``) and the in-memory results into a
+  :class:`Report`: a title block and a list of :class:`Section`. A section is plain data:
+  a title and blocks in reading order, each block a paragraph (``str``), a :class:`Table`
+  (headers, rows, an HTML class) or a :class:`FigureSpec` (which function of
+  :mod:`planshear.figures` draws it, with plain-data arguments, and whether it is a
+  ``key`` figure or drawn only with ``--figures all``).
+- To add a section, append one: ``report.add("Title", "a paragraph", Table(...), ...)``
+  (in :func:`build_report`, where the order of sections is decided).
+- :func:`render_figures` draws every figure the ``--figures`` choice keeps, once each,
+  as PNG (the plan also as SVG), in parallel worker processes when there are enough.
+- :func:`write_html` and :mod:`planshear.report_pdf` render the same sections: the HTML
+  report (self-contained, figures inline) and the PDF (title block and "page n of m" on
+  every page, several figures per page, tables wrapped and split, never truncated).
 
 Every number in the report's tables is taken from the results.json document itself, so
 the two always agree.
@@ -7,28 +22,33 @@ the two always agree.
 
 from __future__ import annotations
 
+import base64
 import csv
 import html
+import os
+import pickle
+import time
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
-from matplotlib.backends.backend_pdf import PdfPages
-from matplotlib.figure import Figure
 
 from . import __version__
 from .caution import CAUTION
-from .figures import (
-    FigureFile,
-    chord_figure,
-    collector_figure,
-    deflected_figure,
-    plan_figure,
-    save,
-    shear_map_figure,
-    span_deflection_figure,
-)
+from .errors import AnalysisError
+from .figures import broken_at, line_gaps
 
-__all__ = ["write_review_package", "write_tables", "METHODS_TEXT", "LIMITATIONS_TEXT"]
+__all__ = ["write_review_package", "write_tables", "build_report", "render_figures", "write_html", "Report",
+           "Section", "Table", "FigureSpec", "TitleBlock", "METHODS_TEXT", "LIMITATIONS_TEXT", "FIGURE_CHOICES",
+           "PAGE_SIZES"]
+
+#: ``--figures``: none (tables only), key (default: the figures that carry design values:
+#: plan, every collector and chord at its governing case, unit shear along the spans of
+#: the base cases) or all (also the unit shear along the spans of every case, the MDD
+#: diagrams, the finite-element unit-shear maps, the deflected shapes, and the plan as SVG).
+FIGURE_CHOICES = ("none", "key", "all")
+#: ``--page-size``: paper (width, height) in inches; Letter by default.
+PAGE_SIZES = {"letter": (8.5, 11.0), "a4": (8.27, 11.69)}
 
 METHODS_TEXT = [
     ("Load cases", "Seismic weight from area, zone, line and point weights; Fpx by ASCE 7-16 Eq. 12.10-1 "
@@ -93,13 +113,12 @@ LIMITATIONS_TEXT = [
     "not checked.",
 ]
 
-
-_TRANSFER_INTRO = (
-    "<p>Where a notch or offset interrupts a chord, the offset chord force (M / reduced depth) is carried by a "
-    "collector into a transfer region of the full-depth diaphragm that spans across the load between its "
-    "supports (Malone &amp; Rice 2012, ch. 3–4). Unit shears have the sign of the diaphragm shear V; net = main + "
-    "transfer. Reactions are forces along the span delivered to the supports. Representative base case per "
-    "direction; every case is in transfer.csv, net_shears.csv and results.json.</p>"
+IRREGULARITY_TEXT = (
+    "Detected and reported. Of the consequences, the torsional amplification Ax (§12.8.4.3, SDC C–F: the ±ecc cases "
+    "are run again with the eccentricity × Ax) and the 25 % increase of §12.3.3.4 on collector forces (SDC D–F, not "
+    "on forces that include Ω0) are applied; the others are the engineer's to apply. Torsion: δ at the plan's two extreme edges "
+    "across the load, worst of the accidental-torsion cases; re-entrant corners from the outline; open area = "
+    "openings / area enclosed by the outline. The SDC application column is from memory of the standard."
 )
 
 
@@ -278,7 +297,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     for case_name, case in semi.items():
         for zone, item in case.get("unit_shear_by_zone", {}).items():
             rows.append([case_name, zone, item["value"], f"({item['at'][0]:.4g}, {item['at'][1]:.4g})"])
-    tables["unit_shear"] = (["case", "zone", f"max unit shear ({units['unit_shear']})", f"at ({p})"], rows)
+    tables["unit_shear"] = (["case", "zone", f"largest element value ({units['unit_shear']}); may be a singular peak",
+                             f"at ({p})"], rows)
     tables.update(transfer_tables(doc, set(_base_cases(doc).values())))
     rows = []
     for m, method in doc["assumptions"].items():
@@ -456,328 +476,758 @@ def write_tables(folder: Path, doc: dict) -> list[str]:
     return written
 
 
-_CSS = """
-body{font-family:Georgia,'DejaVu Serif',serif;color:#222;background:#fbfaf6;max-width:60rem;margin:2rem auto;padding:0 1rem;line-height:1.4}
-h1{font-size:1.6rem;border-bottom:3px double #222;padding-bottom:.3rem}
-h2{font-size:1.15rem;margin-top:2rem;border-bottom:1px solid #999}
-table{border-collapse:collapse;font-size:.8rem;margin:.5rem 0 1rem;font-family:'DejaVu Sans Mono',monospace}
-th,td{border:1px solid #aaa;padding:.15rem .4rem;text-align:right}
-th{background:#ece8dc}
-td:first-child,th:first-child,td.text{text-align:left}
-.caution{border:2px solid #222;padding:.6rem 1rem;background:#fff;font-weight:bold}
-figure{margin:1rem 0;page-break-inside:avoid}
-figure svg{width:100%;height:auto}
-figcaption{font-size:.8rem;font-style:italic}
-@media print{body{background:#fff;max-width:none;margin:0}h2{page-break-after:avoid}table{page-break-inside:avoid}}
-"""
+# -- content as data --------------------------------------------------------------------
 
 
-def _figures(doc: dict, results, folder: Path, pdf: PdfPages) -> dict[str, list[FigureFile]]:
-    figures_dir = folder / "figures"
-    made: dict[str, list[FigureFile]] = {"plan": [], "collectors": [], "chords": [], "shear": [], "deflected": []}
+@dataclass(frozen=True)
+class Table:
+    """A table: ``headers`` (units in them), ``rows`` of cells (numbers, text, None),
+    ``key`` the HTML class it is found by."""
 
-    def keep(section: str, fig: Figure, name: str, title: str) -> None:
-        made[section].append(save(fig, figures_dir, name, title))
-        pdf.savefig(fig)
+    headers: list
+    rows: list
+    key: str = ""
 
-    keep("plan", plan_figure(doc, results.plan), "plan", "Plan")
+
+@dataclass(frozen=True)
+class FigureSpec:
+    """A figure to draw: ``draw`` names a function of :mod:`planshear.figures` called with
+    ``kwargs`` (plain data, so a worker process can draw it); ``name`` is the file stem
+    under figures/; ``level`` "key" or "all" (the ``--figures`` choice that draws it);
+    ``svg``: also write a vector copy (used inline in the HTML); ``local``: drawn in the
+    main process (its arguments are large)."""
+
+    name: str
+    title: str
+    draw: str
+    kwargs: dict
+    level: str = "key"
+    svg: bool = False
+    local: bool = False
+
+
+@dataclass(frozen=True)
+class Section:
+    """A report section: a title and blocks in reading order (paragraph text, Table,
+    FigureSpec)."""
+
+    title: str
+    blocks: tuple
+
+
+@dataclass(frozen=True)
+class TitleBlock:
+    """What the title block shows on the HTML report and on every PDF page."""
+
+    job: str
+    engineer: str
+    checker: str
+    date: str
+    revision: str
+    plan_name: str
+    plan_file: str
+    version: str
+
+    def fields(self) -> list[tuple[str, str]]:
+        return [("job", self.job or self.plan_name), ("plan file", self.plan_file), ("engineer", self.engineer),
+                ("checker", self.checker), ("date", self.date), ("revision", self.revision),
+                ("program", f"planshear {self.version}")]
+
+
+@dataclass(frozen=True)
+class Report:
+    """The report's content: ``sections`` in order (a list: sections may be added)."""
+
+    title: str
+    title_block: TitleBlock
+    caution: str
+    sections: list = field(default_factory=list)
+
+    def add(self, title: str, *blocks) -> Section:
+        """Append a section; empty blocks ("" or None) are left out."""
+        made = Section(title, tuple(b for b in blocks if b is not None and b != ""))
+        self.sections.append(made)
+        return made
+
+    def figures(self, choice: str) -> list[FigureSpec]:
+        """The figures the ``--figures`` choice keeps, in reading order."""
+        levels = {"none": (), "key": ("key",), "all": ("key", "all")}[choice]
+        return [b for s in self.sections for b in s.blocks if isinstance(b, FigureSpec) and b.level in levels]
+
+
+def title_block(doc: dict) -> TitleBlock:
+    plan = doc["plan"]
+    given = plan.get("title_block") or {}
+    return TitleBlock(given.get("job", ""), given.get("engineer", ""), given.get("checker", ""),
+                      given.get("date", ""), given.get("revision", ""), plan["name"], Path(plan["file"]).name,
+                      __version__)
+
+
+def _table_block(tables: dict, key: str) -> Table:
+    headers, rows = tables[key]
+    return Table(headers, rows, key)
+
+
+def build_report(doc: dict, results=None, figures: str = "all") -> Report:
+    """The report's sections from results.json ``doc`` (and the in-memory ``results`` for
+    the figures that need the finite-element mesh; None: those figures are left out).
+    ``figures``: the ``--figures`` choice; the data of figures it leaves out is not
+    prepared."""
+    tables = report_tables(doc)
+    tab = lambda key: _table_block(tables, key)  # noqa: E731 - a short local alias
+    plan = doc["plan"]
+    report = Report(f"Diaphragm analysis: {plan['name']}", title_block(doc), CAUTION)
+    units = doc["units"]
+    area_key = next(k for k in plan if k.startswith("area_"))
+    classification = doc.get("classification") or {"directions": {}}
+    verdicts = [f"Load along {a}: {c['verdict']} (governing span {c['governing_span']})."
+                + "".join(f" {n}" for n in c.get("notes", ())) for a, c in classification["directions"].items()]
+    if classification.get("calculated") is False:
+        verdicts.append(f"Not calculated: {classification['reason']}. {classification['note']}")
+    if "overall" in classification:
+        verdicts.append(f"Overall: {classification['overall']['verdict']}; governing: "
+                        f"{classification['overall']['governing']}.")
     base = _base_cases(doc)
-    assumptions = [a for a in ("flexible", "rigid", "semirigid") if a in doc["assumptions"]]
-    line_names = sorted({n for a in assumptions for c in doc["assumptions"][a]["cases"].values() for n in c["lines"]})
-    for line in line_names:
-        for axis, case_name in base.items():
-            cases = {a: case_name for a in assumptions}
-            if not any(line in doc["assumptions"][a]["cases"].get(case_name, {}).get("lines", {}) for a in assumptions):
+    report.add("Project and plan",
+               f"Plan file {plan['file']}; diaphragm area {_plain(plan[area_key])} {area_key[5:]}; material: "
+               f"{plan['material']}. Load cases: {', '.join(plan['cases'])}. Units: forces {units['force']}, "
+               f"positions {units['position']}, displacements {units['displacement']}. planshear {__version__}.",
+               *verdicts)
+    not_run = [f"{a}: {r}" for a, r in doc.get("unavailable", {}).items()]
+    if not_run:
+        report.add("Assumptions not run", *not_run)
+    # The vector copy (inline in the HTML, zoomable) is a second drawing: with --figures all.
+    _design_check_sections(report, doc, figures)
+    report.add("Plan drawing", FigureSpec("plan", "Plan", "plan_figure", {}, svg=figures == "all", local=True))
+    report.add("Materials and wall stiffness", tab("materials"), tab("stiffness"))
+    report.add("Loads and load cases", tab("loads"), tab("cases"))
+    _traced_section(report, doc)
+    report.add("Flexibility (ASCE 7-16 §12.3.1)", tab("classification"),
+               "The same check by beam theory on the flexible method's simple spans (chord bending and sheathing "
+               "shear; no finite-element model):", tab("span_deflection"),
+               *(_span_deflection_specs(doc, results) if figures == "all" else ()))
+    report.add("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", IRREGULARITY_TEXT, tab("irregularities"))
+    report.add("Wall forces", "Largest magnitude over the cases of each assumption; design = envelope over the "
+               "assumptions the code allows for the load direction.", tab("walls"))
+    report.add("Collectors", tab("collectors"), MEMBER_TEXT, *_member_specs(doc, "collectors"))
+    report.add("Chords", tab("chords"), MEMBER_TEXT, *_member_specs(doc, "chords"))
+    report.add("Unit shear along the spans", UNIT_SHEAR_TEXT,
+               *(_unit_shear_specs(doc, results, base, figures) if figures != "none" else ()),
+               tab("unit_shear"), *(_map_specs(doc, results, base, "shear") if figures == "all" else ()))
+    if doc.get("drift"):
+        report.add("Story drift (ASCE 7-16 §12.8.6, §12.12.1)", doc["drift"]["note"], tab("drift"))
+    if doc.get("engineer_envelope"):
+        report.add("Engineer-chosen envelope", doc["engineer_envelope"]["label"], tab("engineer_envelope"))
+    report.add("Walls along chord lines", CHORD_WALLS_TEXT, tab("chord_walls"), tab("walls_across"))
+    report.add("Transfer diaphragms (flexible and rigid methods)", TRANSFER_TEXT, tab("transfer"), tab("net_shears"))
+    report.add("Notes per case", tab("case_notes"))
+    if doc.get("sensitivity"):
+        report.add("Sensitivity to the diaphragm stiffness", SENSITIVITY_TEXT, *sensitivity_tables(doc))
+    if figures == "all":
+        report.add("Deflected shape", *_map_specs(doc, results, base, "deflected"))
+    report.add("Equilibrium residuals", tab("residuals"))
+    report.add("Methods and sources", *[f"{n}: {t}" for n, t in METHODS_TEXT])
+    report.add("Assumptions and limitations", *LIMITATIONS_TEXT,
+               *[n for m in doc["assumptions"].values() for n in m.get("notes", [])])
+    return report
+
+
+def _traced_section(report: Report, doc: dict) -> None:
+    """"Loads and stiffness, traced" (postprocess/traceability.py): each block a sub-heading
+    paragraph, its text and its table."""
+    from .postprocess.traceability import traced_section
+
+    data = traced_section(doc)
+    blocks: list = []
+    for block in data["blocks"]:
+        blocks += [block["heading"] + ":", *block["text"]]
+        if block["rows"]:
+            blocks.append(Table(block["headers"], block["rows"], "traced"))
+    if blocks:
+        report.add(data["title"], *blocks)
+
+
+def _design_check_sections(report: Report, doc: dict, figures: str) -> None:
+    """"Design checks" (with capacities: failures first, and the D/C map) and "Chords and
+    collectors by member" (each member once, with both roles)."""
+    checks = doc.get("checks")
+    if checks:
+        failures = checks["failures"]
+        lead = (f"Basis: {checks['basis']}. {checks['rule']}. "
+                + (f"{failures} check(s) FAIL (listed first)." if failures else "Every check with a capacity passes."))
+        report.add("Design checks", lead, Table(*checks_table(doc), "checks"),
+                   FigureSpec("dc_map", "Demand/capacity map", "dc_map_figure", {}, local=True)
+                   if figures != "none" else None)
+    headers, rows = envelope_table(doc)
+    rows = [r for r in rows if r[0] in ("member", "splice")]
+    report.add("Chords and collectors by member",
+               "Each member once, by grid line and bay, with both roles: chord (load across it) and collector (load "
+               "along it; with Ω0 per ASCE 7-16 §12.10.2.1 where the case requires it); the design value is the "
+               "larger. Splices: the member force at each declared splice.", Table(headers, rows, "members"))
+
+
+MEMBER_TEXT = (
+    "Each diagram: heavy, the case and assumption that govern the design value (tension and compression); thin, "
+    "the base cases of the same direction under every assumption for comparison. The marked point is the design "
+    "value of the envelope, with its case; where the envelope value includes a factor (e.g. §12.3.3.4) the "
+    "diagram's own peak is given beside it."
+)
+
+UNIT_SHEAR_TEXT = (
+    "V(s)/ℓ(s) along each span, from which nailing or weld zones are laid out: flexible and rigid from the beam "
+    "analogy of the method (V the diaphragm shear, ℓ the length of diaphragm present at the station); semi-rigid "
+    "from the finite-element unit shear Nxy averaged across the depth at the same stations and over a stated "
+    "width along the span (dotted: the largest value across the depth, averaged over the same width). Grey zones "
+    "lie within one element size of a re-entrant corner or a wall end, where the finite-element unit shear has a "
+    "singular peak that grows with mesh refinement: values there are not design values. The marked values are "
+    "the largest outside those zones. Magnitudes."
+)
+
+SENSITIVITY_TEXT = (
+    "The semi-rigid model run again with the diaphragm's membrane rigidities × the factor ([classification] "
+    "sensitivity). Largest magnitudes over the cases; change relative to the plan's stiffness. The design envelope "
+    "includes these runs with the semi-rigid assumption: 'governs' says where a run sets the design value "
+    "(shown as semirigid@factor in the envelope tables). The flexibility classification is computed for the plan's "
+    "stiffness only."
+)
+
+TRANSFER_TEXT = (
+    "Where a notch or offset interrupts a chord, the offset chord force (M / reduced depth) is carried by a "
+    "collector into a transfer region of the full-depth diaphragm that spans across the load between its "
+    "supports (Malone & Rice 2012, ch. 3–4). Unit shears have the sign of the diaphragm shear V; net = main + "
+    "transfer. Reactions are forces along the span delivered to the supports. Representative base case per "
+    "direction; every case is in transfer.csv, net_shears.csv and results.json."
+)
+
+
+def _case_axis(doc: dict) -> dict[str, str]:
+    """Case name → load axis ("x" or "y")."""
+    return {c["name"]: c["direction"][1:] for c in doc["plan"]["case_details"]}
+
+
+def _fmt(value: float) -> str:
+    return f"{value:.4g}"
+
+
+def _named(assumption: str) -> str:
+    """An assumption as the report names it: "semirigid@0.5" → "semirigid, stiffness × 0.5"."""
+    base, _, factor = assumption.partition("@")
+    return f"{base}, stiffness × {factor}" if factor else base
+
+
+def _case_doc(doc: dict, assumption: str, case: str) -> dict:
+    """A case's results under an assumption; "semirigid@0.5" is the stiffness-sensitivity
+    run × 0.5 (results.json ``sensitivity``), which the envelope includes."""
+    if "@" in assumption:
+        factor = assumption.split("@", 1)[1]
+        return (doc.get("sensitivity") or {}).get(factor, {}).get("cases", {}).get(case, {})
+    return doc["assumptions"].get(assumption, {}).get("cases", {}).get(case, {})
+
+
+def _member_specs(doc: dict, group: str) -> list[FigureSpec]:
+    """One diagram per collector or chord with a diagram: governing case(s) heavy and the
+    base cases of that direction thin, design values marked (tension and compression)."""
+    envelope = (doc.get("envelope") or {}).get(group, {})
+    units = doc["units"]
+    f, p = units["force"], units["position"]
+    axis_of = _case_axis(doc)
+    base = _base_cases(doc)
+    kinds = {name: load["kind"] for name, load in doc["plan"]["loads"].items()}
+    seismic = {c["name"]: kinds.get(c["load"]) == "seismic" for c in doc["plan"]["case_details"]}
+    specs = []
+
+    def diagram(assumption: str, case: str, name: str):
+        case_doc = _case_doc(doc, assumption, case)
+        if group == "collectors":
+            data = case_doc.get("lines", {}).get(name)
+            return data and broken_at(data["collector"], line_gaps(doc, name))
+        data = case_doc.get("chords", {}).get(name)
+        return data and data.get("diagram")
+
+    for k, (name, slots) in enumerate(envelope.items()):
+        governing = [(kind, slots[kind]) for kind in ("tension", "compression") if slots.get(kind)]
+        if not governing and slots.get("design"):
+            governing = [("design", slots["design"])]
+        heavy = {(g["assumption"], g["case"]) for _, g in governing}
+        series, marks = [], []
+        for assumption, case in sorted(heavy):
+            points = diagram(assumption, case, name)
+            if points:
+                series.append({"assumption": assumption.split("@")[0], "label": f"{_named(assumption)} {case} (governs)",
+                               "points": points, "governs": True})
+        if not series:
+            continue  # no diagram of its own (e.g. a transfer collector): its values are in the table
+        axes = {axis_of.get(case) for _, case in heavy}
+        for assumption in ("flexible", "rigid", "semirigid"):
+            for axis in sorted(a for a in axes if a):
+                case = base.get(axis)
+                if case is None or (assumption, case) in heavy:
+                    continue
+                points = diagram(assumption, case, name)
+                if points:
+                    series.append({"assumption": assumption, "label": f"{assumption} {case}", "points": points,
+                                   "governs": False})
+        for kind, g in governing:
+            points = np.asarray(diagram(g["assumption"], g["case"], name) or [], dtype=float).reshape(-1, 2)
+            finite = points[np.isfinite(points[:, 1])]
+            if not len(finite):
                 continue
-            keep("collectors", collector_figure(doc, line, cases), f"collector_{_slug(line)}_{axis}",
-                 f"Collector force along line {line}, load along {axis}")
-    edges = sorted({n for a in assumptions for c in doc["assumptions"][a]["cases"].values() for n in c["chords"]},
-                   key=lambda s: int(s.split()[-1]) if s.split()[-1].isdigit() else 0)
-    for edge in edges:
-        for axis, case_name in base.items():
-            cases = {a: case_name for a in assumptions}
-            if not any(doc["assumptions"][a]["cases"].get(case_name, {}).get("chords", {}).get(edge, {}).get("diagram")
-                       for a in assumptions):
+            i_top, i_bottom = int(np.argmax(finite[:, 1])), int(np.argmin(finite[:, 1]))
+            top, bottom = float(finite[i_top, 1]), float(finite[i_bottom, 1])
+            # A seismic case is analyzed along +axis only; its reversal is the negative diagram.
+            reverses = seismic.get(g["case"], False)
+            if kind == "tension":
+                reversed_ = reverses and -bottom > top
+                i, peak = (i_bottom, -bottom) if reversed_ else (i_top, top)
+            elif kind == "compression":
+                reversed_ = reverses and -top < bottom
+                i, peak = (i_top, -top) if reversed_ else (i_bottom, bottom)
+            else:
+                reversed_ = False
+                i = int(np.argmax(np.abs(finite[:, 1])))
+                peak = float(finite[i, 1])
+            label = f"{_named(g['assumption'])} {g['case']}"
+            if reversed_:
+                label = f"{_named(g['assumption'])} {g['case']} reversed"
+                if not any(x["label"] == f"{label} (governs)" for x in series):
+                    series.append({"assumption": g["assumption"].split("@")[0], "label": f"{label} (governs)",
+                                   "points": (points * [1.0, -1.0]).tolist(), "governs": True, "reversed": True})
+            text = f"design {'T' if kind == 'tension' else 'C' if kind == 'compression' else ''} {_fmt(g['value'])} {f}"
+            if abs(g["value"] - peak) > 1e-3 * max(abs(peak), abs(g["value"]), 1e-12):
+                text += f" (diagram {_fmt(peak)})"
+            marks.append({"assumption": g["assumption"].split("@")[0], "s": float(finite[i, 0]), "value": peak,
+                          "text": f"{text}\n{label}"})
+        note = ""
+        if slots.get("with_overstrength"):
+            w = slots["with_overstrength"]
+            note = f"With Ω0 (ASCE 7-16 §12.10.2.1): {_fmt(w['value'])} {f}, {_named(w['assumption'])} {w['case']}."
+        where = f"along line {name}" if group == "collectors" else f"along {name} from its first corner"
+        role = "Collector" if group == "collectors" else "Chord"
+        named = slots.get("member") or name
+        named = named if named == name or group == "collectors" else f"{named} (outline {name})"
+        specs.append(FigureSpec(
+            f"{role.lower()}_{k:02d}_{_slug(name)}", f"{role} force, {named}", "member_diagram_figure",
+            {"title": f"{role} force, {named}", "xlabel": f"position {where} ({p})",
+             "ylabel": f"N ({f}), tension +", "series": series, "marks": marks, "note": note}))
+    return specs
+
+
+def _span_deflection_specs(doc: dict, results) -> list[FigureSpec]:
+    if results is None or results.classification is None:
+        return []
+    specs = []
+    for axis, check in results.classification.directions.items():
+        by_case: dict[str, list] = {}
+        for span in check.spans:
+            by_case.setdefault(span.case, []).append(span)
+        for case_name, spans in by_case.items():
+            plain = [{"stations": sp.stations, "deflection": sp.deflection, "mdd_at": tuple(sp.mdd_at),
+                      "ratio": sp.ratio, "mdd_local": sp.mdd_local, "mdd_local_at": tuple(sp.mdd_local_at),
+                      "left_line": sp.left_line, "right_line": sp.right_line} for sp in spans]
+            specs.append(FigureSpec(
+                f"span_deflection_{_slug(case_name)}", f"Diaphragm deflection along the span (MDD), {case_name}",
+                "span_deflection_figure", {"spans": plain, "case": case_name, "axis": axis, "units": doc["units"],
+                                           "disp_factor": results.units.displacement_out(1.0),
+                                           "length_scale": results.plan.length_scale,
+                                           "length_unit": results.plan.length_unit},
+                level="all"))  # the classification table carries the values
+    return specs
+
+
+def _map_specs(doc: dict, results, base: dict[str, str], kind: str) -> list[FigureSpec]:
+    """Unit-shear maps or deflected shapes of the semi-rigid cases (base cases: key)."""
+    if results is None or results.semirigid is None:
+        return []
+    mesh, solution = results.semirigid.mesh, results.semirigid.solution
+    plan = results.plan
+    scale = 1.0 / plan.length_scale
+    corners = 3 if mesh.element_type.startswith("tri") else 4
+    cells = mesh.elements[:, :corners]
+    key: set[str] = set()  # the maps and deflected shapes: --figures all (the span diagrams carry the design values)
+    specs = []
+    for j, case in enumerate(solution.cases):
+        level = "key" if case.name in key else "all"
+        if kind == "shear":
+            values = np.abs(results.semirigid.membrane[:, 2, j]) * results.units.line_force_out(1.0)
+            specs.append(FigureSpec(
+                f"unit_shear_{_slug(case.name)}", f"Unit shear, {case.name}", "shear_map_figure",
+                {"polygons": mesh.nodes[cells] * scale, "values": values,
+                 "title": f"Unit shear |Nxy|, semi-rigid, {case.name} (element averages)",
+                 "label": f"unit shear |Nxy| ({doc['units']['unit_shear']})"}, level=level))
+        else:
+            u = solution.node_displacements(j)
+            magnitude = np.hypot(u[:, 0], u[:, 1])
+            size = float(np.ptp(mesh.nodes, axis=0).max())
+            magnify = 0.08 * size / magnitude.max() if magnitude.max() > 0 else 1.0
+            specs.append(FigureSpec(
+                f"deflected_{_slug(case.name)}", f"Deflected shape, {case.name}", "deflected_figure",
+                {"moved": (mesh.nodes + magnify * u)[cells] * scale,
+                 "values": magnitude[cells].mean(axis=1) * results.units.displacement_out(1.0),
+                 "outline": plan.outline * scale,
+                 "title": f"Deflected shape, semi-rigid, {case.name} (magnified ×{magnify:.3g}; dashed: undeformed)",
+                 "label": f"displacement ({doc['units']['displacement']})"}, level=level))
+    return specs
+
+
+def _singular_zones(plan, s_index: int, width: float) -> list[tuple[float, float]]:
+    """Stations (m) within ``width`` of a re-entrant corner (of the outline or an opening)
+    or a wall end, merged into zones."""
+    points = [w.start for w in plan.walls] + [w.end for w in plan.walls]
+    outline = plan.outline
+    after, before = np.roll(outline, -1, axis=0) - outline, outline - np.roll(outline, 1, axis=0)
+    turn = before[:, 0] * after[:, 1] - before[:, 1] * after[:, 0]
+    points += list(outline[turn < 0])  # counter-clockwise outline: a right turn is re-entrant
+    for opening in plan.openings:
+        points += list(opening)  # every corner of an opening is re-entrant for the diaphragm
+    zones: list[list[float]] = []
+    for s in sorted(float(p[s_index]) for p in points):
+        if zones and s - width <= zones[-1][1]:
+            zones[-1][1] = s + width
+        else:
+            zones.append([s - width, s + width])
+    return [(a, b) for a, b in zones]
+
+
+def fe_unit_shear_along_span(results, case_index: int, axis: str, stations: np.ndarray, width: float,
+                             sub: int = 3, samples: int = 48) -> tuple[np.ndarray, np.ndarray]:
+    """Finite-element unit shear Nxy (N/m) along the span for load along ``axis`` at
+    ``stations`` (m): the mean across the depth (the finite-element counterpart of V/ℓ)
+    and the largest magnitude across the depth, each averaged over ``width`` (m) along
+    the span (``sub`` sections across it). Element values are constant per element."""
+    from .fem.model import element_polygons
+    from .postprocess.sections import _locate, section_points
+
+    s_index = 0 if axis == "y" else 1
+    plan, mesh = results.plan, results.semirigid.mesh
+    offsets = width * ((np.arange(sub) + 0.5) / sub - 0.5)
+    lo, hi = float(plan.outline[:, s_index].min()), float(plan.outline[:, s_index].max())
+    inset = 1e-6 * (hi - lo)  # every cut strictly inside the plan's extent crosses the diaphragm
+    probe = np.clip(stations[:, None] + offsets[None, :], lo + inset, hi - inset).ravel()
+    xy, _ = section_points(plan, s_index, probe, samples)
+    flat = xy.reshape(-1, 2)
+    element = np.full(len(flat), -1)
+    finite = np.all(np.isfinite(flat), axis=1)
+    element[finite] = _locate(element_polygons(mesh), flat[finite])
+    nxy = np.where(element >= 0, results.semirigid.membrane[np.maximum(element, 0), 2, case_index], np.nan)
+    nxy = nxy.reshape(len(stations), sub, samples)
+    with np.errstate(invalid="ignore"), __import__("warnings").catch_warnings():
+        __import__("warnings").simplefilter("ignore", RuntimeWarning)  # stations beyond the outline: all NaN
+        mean = np.abs(np.nanmean(np.nanmean(nxy, axis=2), axis=1))
+        peak = np.nanmean(np.nanmax(np.abs(nxy), axis=2), axis=1)
+    return mean, peak
+
+
+def _unit_shear_specs(doc: dict, results, base: dict[str, str], figures: str = "all") -> list[FigureSpec]:
+    """V(s)/ℓ(s) along the span per direction (base case: key; other cases: all), every
+    assumption, the finite-element unit shear beside it."""
+    units = doc["units"]
+    names = [c.name for c in results.semirigid.solution.cases] if results is not None and results.semirigid else []
+    specs = []
+    for case in doc["plan"]["case_details"]:
+        name, axis = case["name"], case["direction"][1:]
+        if figures == "key" and name not in base.values():
+            continue
+        series, marks, shaded, note = [], [], [], ""
+        stations = None
+        for assumption in ("flexible", "rigid"):
+            data = doc["assumptions"].get(assumption, {}).get("cases", {}).get(name, {}).get("span_shear")
+            if not data:
                 continue
-            member = ((doc.get("envelope") or {}).get("chords", {}).get(edge) or {}).get("member", edge)
-            keep("chords", chord_figure(doc, edge, cases), f"chord_{_slug(edge)}_{axis}",
-                 f"Chord force, {member} (outline {edge}), load along {axis}")
-    if results.semirigid is not None:
-        solution = results.semirigid.solution
-        membrane = results.semirigid.membrane
-        names = [c.name for c in solution.cases]
-        units = results.units
-        for case_name in base.values():
-            if case_name not in names:
+            s = np.asarray(data["stations"], dtype=float)
+            v = np.abs(np.asarray(data["unit_shear"], dtype=float))
+            stations = s if stations is None else stations
+            series.append({"assumption": assumption, "label": f"{assumption}: V/ℓ", "s": s, "values": v})
+            k = int(np.argmax(v))
+            marks.append({"assumption": assumption, "s": float(s[k]), "value": float(v[k]),
+                          "text": f"{assumption}: {_fmt(v[k])} {units['unit_shear']}"})
+        if name in names and results is not None:
+            plan = results.plan
+            scale = plan.length_scale
+            width = plan.mesh.size
+            s_index = 0 if axis == "y" else 1
+            lo, hi = float(plan.outline[:, s_index].min()), float(plan.outline[:, s_index].max())
+            s_m = np.linspace(lo, hi, 122)[1:-1]
+            mean, peak = fe_unit_shear_along_span(results, names.index(name), axis, s_m, width)
+            factor = results.units.line_force_out(1.0)
+            s_out = s_m / scale
+            series.append({"assumption": "semirigid", "label": "semi-rigid: Nxy mean across the depth", "s": s_out,
+                           "values": mean * factor})
+            series.append({"assumption": "semirigid", "label": "semi-rigid: largest across the depth", "s": s_out,
+                           "values": peak * factor, "thin": True})
+            zones = _singular_zones(plan, s_index, plan.mesh.size)
+            shaded = [(a / scale, b / scale) for a, b in zones]
+            outside = np.ones(len(s_m), bool)
+            for a, b in zones:
+                outside &= ~((s_m >= a) & (s_m <= b))
+            usable = np.where(outside & np.isfinite(mean), mean, -np.inf)
+            if np.isfinite(usable).any() and usable.max() > -np.inf:
+                k = int(np.argmax(usable))
+                marks.append({"assumption": "semirigid", "s": float(s_out[k]), "value": float(mean[k] * factor),
+                              "text": f"semi-rigid: {_fmt(mean[k] * factor)} {units['unit_shear']}"})
+            note = (f"Semi-rigid: averaged over a width of {_fmt(width / scale)} {units['position']} along the span "
+                    "(the plan's element size); grey: within one element size of a re-entrant corner or wall end.")
+        if not series:
+            continue
+        along = "x" if axis == "y" else "y"
+        specs.append(FigureSpec(
+            f"span_unit_shear_{_slug(name)}", f"Unit shear along the span, {name}", "unit_shear_figure",
+            {"title": f"Unit shear along the span, {name} (load along {axis})",
+             "xlabel": f"{along} ({units['position']})", "ylabel": f"unit shear ({units['unit_shear']})",
+             "series": series, "shaded": shaded, "marks": marks, "note": note},
+            level="key" if name in base.values() else "all"))
+    return specs
+
+
+def sensitivity_tables(doc: dict) -> list[Table]:
+    """Per stiffness factor: walls, collectors and chords against the plan's stiffness."""
+    f = doc["units"]["force"]
+    semi = doc["assumptions"].get("semirigid", {}).get("cases", {})
+    envelope = doc.get("envelope") or {}
+
+    def largest(cases: dict, pick) -> dict[str, float]:
+        out: dict[str, float] = {}
+        for case in cases.values():
+            for name, value in pick(case).items():
+                if value is not None and abs(value) > abs(out.get(name, 0.0)):
+                    out[name] = value
+        return out
+
+    picks = {
+        "walls": lambda c: c.get("walls", {}),
+        "collectors": lambda c: {n: line.get("collector_peak") for n, line in c.get("lines", {}).items()},
+        "chords": lambda c: {n: chord.get("peak") for n, chord in c.get("chords", {}).items()},
+    }
+    out = []
+    for group, pick in picks.items():
+        reference = largest(semi, pick)
+        rows = []
+        for factor, method in doc["sensitivity"].items():
+            scaled = largest(method.get("cases", {}), pick)
+            for name, value in scaled.items():
+                ref = reference.get(name)
+                design = ((envelope.get(group) or {}).get(name) or {}).get("design")
+                change = None if not ref else round(100 * (abs(value) / abs(ref) - 1), 1)
+                governs = "" if design is None else ("yes" if design["assumption"] == f"semirigid@{factor}" else "no")
+                rows.append([f"× {factor}", name, ref, value, change, governs])
+        out.append(Table(["stiffness", group[:-1], f"plan's stiffness ({f})", f"with the factor ({f})", "change (%)",
+                          "governs the design value"], rows, f"sensitivity_{group}"))
+    return out
+
+
+# -- figures --------------------------------------------------------------------------
+
+
+def render_figures(report: Report, doc: dict, results, folder: Path, choice: str = "key",
+                   workers: int | None = None, timings: dict | None = None) -> dict[str, tuple[float, float]]:
+    """Draw the figures ``choice`` keeps into ``folder`` (PNG; SVG where asked): name →
+    (width, height) in inches.
+
+    With enough figures to pay for starting them, ``workers`` − 1 separate Python
+    processes draw a share each while this one draws its own (None: one per idle core,
+    see :func:`_helpers`). A worker runs planshear/figures.py alone (numpy and
+    matplotlib, not the whole package, and nothing of the calling program) on a pickle of
+    plain data; a batch whose worker fails is drawn here instead."""
+    from .figures import render
+
+    specs = report.figures(choice)
+    if not specs:
+        return {}
+    folder.mkdir(parents=True, exist_ok=True)
+    sizes: dict[str, tuple[float, float]] = {}
+    start = time.perf_counter()
+    local = [s for s in specs if s.local]
+    shared = [s for s in specs if not s.local]
+    helpers = _helpers(workers) if len(shared) >= PARALLEL_FROM else 0
+    # Every (helpers + 1)-th figure to each process (the costly maps come in pairs, so they
+    # are spread); this process also draws the plan, so it takes a smaller share.
+    batches = [shared[k::helpers + 1] for k in range(helpers + 1)]
+    started = []
+    try:
+        started = _start_workers(batches[1:], folder)
+        for spec in local + batches[0]:
+            kwargs = ({"doc": doc, "plan": results.plan} if spec.draw == "plan_figure" else
+                      {"plan": results.plan, "checks": results.checks} if spec.draw == "dc_map_figure" else spec.kwargs)
+            t = time.perf_counter()
+            name, w, h = render(spec.draw, kwargs, str(folder), spec.name, spec.svg)
+            sizes[name] = (w, h)
+            if timings is not None:
+                timings["figure " + spec.draw] = timings.get("figure " + spec.draw, 0.0) + time.perf_counter() - t
+        for process, path, batch in started:
+            process.wait()
+            out = path.with_suffix(".out")
+            if process.returncode == 0 and out.exists():
+                sizes.update(pickle.loads(out.read_bytes()))
                 continue
-            j = names.index(case_name)
-            keep("shear", shear_map_figure(results.plan, results.semirigid.mesh, np.abs(membrane[:, 2, j]), case_name,
-                                           doc["units"], units.line_force_out(1.0)),
-                 f"unit_shear_{_slug(case_name)}", f"Unit shear, {case_name}")
-            keep("deflected", deflected_figure(results.plan, results.semirigid.mesh, solution.node_displacements(j),
-                                               case_name, doc["units"], units.displacement_out(1.0)),
-                 f"deflected_{_slug(case_name)}", f"Deflected shape, {case_name}")
-    if results.classification is not None:
-        for axis, check in results.classification.directions.items():
-            by_case: dict[str, list] = {}
-            for span in check.spans:
-                by_case.setdefault(span.case, []).append(span)
-            for case_name, spans in by_case.items():
-                keep("deflected", span_deflection_figure(results.plan, spans, case_name, axis, doc["units"],
-                                                         results.units.displacement_out(1.0)),
-                     f"span_deflection_{_slug(case_name)}", f"Diaphragm deflection along the span (MDD), {case_name}")
-    return made
+            for spec in batch:  # the worker failed (e.g. could not start): draw its share here
+                name, w, h = render(spec.draw, spec.kwargs, str(folder), spec.name, spec.svg)
+                sizes[name] = (w, h)
+    finally:
+        for process, path, _ in started:
+            if process.poll() is None:  # only after an error above: stop the workers this call started
+                process.kill()
+                process.wait()
+            path.unlink(missing_ok=True)
+            path.with_suffix(".out").unlink(missing_ok=True)
+    if timings is not None:
+        timings["figures (wall time)"] = time.perf_counter() - start
+    return sizes
+
+
+def _helpers(workers: int | None) -> int:
+    """Worker processes to start besides this one: ``workers`` − 1 when given; else one per
+    idle core (cores less the one-minute load average, which counts this process), at
+    most 3. On a busy machine a helper only adds its start-up (about a second of numpy and
+    matplotlib imports) to work that has no free core to run on."""
+    if workers is not None:
+        return max(0, workers - 1)
+    cores = os.cpu_count() or 1
+    try:
+        idle = cores - os.getloadavg()[0]
+    except OSError:  # no load average on this platform
+        idle = cores - 1
+    return max(0, min(3, cores - 1, int(idle + 0.5)))
+
+
+def _start_workers(batches: list[list[FigureSpec]], folder: Path) -> list:
+    """Start one figure process per batch: [(process, batch file, batch)]."""
+    import subprocess
+    import sys
+
+    script = str(Path(__file__).with_name("figures.py"))
+    launcher = "import runpy, sys; runpy.run_path(sys.argv[1], run_name='__main__')"
+    started = []
+    for k, batch in enumerate(batches):
+        if not batch:
+            continue
+        path = folder / f".batch-{k}.pickle"
+        path.write_bytes(pickle.dumps([(s.draw, s.kwargs, str(folder), s.name, s.svg) for s in batch]))
+        process = subprocess.Popen([sys.executable, "-c", launcher, script, str(path)],
+                                   stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        started.append((process, path, batch))
+    return started
+
+
+#: Fewest figures drawn in worker processes (below this, starting the processes costs more).
+PARALLEL_FROM = 8
 
 
 def _slug(text: str) -> str:
     return "".join(ch if ch.isalnum() else "_" for ch in text).strip("_")
 
 
-def _text_pages(pdf: PdfPages, sections: list[tuple[str, list[str]]]) -> None:
-    """A4 pages of monospaced text, sections flowing one after the other."""
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-
-    fig, y = None, 0.0
-
-    def new_page():
-        page = Figure(figsize=(8.27, 11.69), facecolor="white")
-        FigureCanvasAgg(page)
-        return page, 0.95
-
-    for title, lines in sections:
-        if fig is None or y < 0.12:
-            if fig is not None:
-                pdf.savefig(fig)
-            fig, y = new_page()
-        fig.text(0.07, y, title, fontsize=12, weight="bold", va="top")
-        y -= 0.03
-        for line in lines:
-            if y < 0.04:
-                pdf.savefig(fig)
-                fig, y = new_page()
-            fig.text(0.07, y, line, fontsize=7, family="monospace", va="top")
-            y -= 0.0135
-        y -= 0.02
-    if fig is not None:
-        pdf.savefig(fig)
+# -- HTML -------------------------------------------------------------------------------
 
 
-def _plain_rows(headers: list[str], rows: list[list]) -> list[str]:
-    cells = [headers] + [[_plain(c) for c in row] for row in rows]
-    widths = [max(len(str(r[i])) for r in cells) for i in range(len(headers))]
-    return ["  ".join(str(c).ljust(w)[:40] for c, w in zip(row, widths, strict=True)) for row in cells]
+def write_html(path: Path, report: Report, figures_dir: Path, sizes: dict, page_size: str = "letter") -> None:
+    """The HTML report: title block, caution, sections; figures inline (SVG where drawn,
+    else PNG); ``@page`` for printing with "page n of m"."""
+    def figure(spec: FigureSpec) -> str:
+        if spec.name not in sizes:
+            return ""
+        svg_path = figures_dir / f"{spec.name}.svg"
+        if spec.svg and svg_path.exists():
+            svg = svg_path.read_text(encoding="utf-8")
+            svg = svg[svg.index("<svg"):]  # drop the XML prolog and doctype for inlining
+            start, end = svg.find("<metadata>"), svg.find("</metadata>")
+            if start >= 0 and end > start:
+                svg = svg[:start] + svg[end + len("</metadata>"):]
+            body = svg
+        else:
+            data = base64.b64encode((figures_dir / f"{spec.name}.png").read_bytes()).decode("ascii")
+            width = sizes[spec.name][0]
+            body = (f'<img alt="{_esc(spec.title)}" style="max-width:{width:.2f}in" '
+                    f'src="data:image/png;base64,{data}">')
+        return f"<figure>{body}<figcaption>{_esc(spec.title)}</figcaption></figure>"
 
+    def block(item) -> str:
+        if isinstance(item, Table):
+            return f'<div class="scroll">{_table(item.headers, item.rows, item.key)}</div>'
+        if isinstance(item, FigureSpec):
+            return figure(item)
+        return f"<p>{_esc(item)}</p>"
 
-def _irregularity_lines(headers: list[str], rows: list[list]) -> list[str]:
-    """Plain lines of the irregularity table: the short columns, then each consequence wrapped."""
-    lines = _plain_rows(headers[:6] + headers[7:8], [row[:6] + row[7:8] for row in rows]) + [""]
-    for row in rows:
-        where = " ".join(str(c) for c in row[2:5] if c)
-        lines += _wrap(f"Type {row[0]} {row[1]}" + (f" [{where}]" if where else "") + f": {row[6]} — {row[8]}", 110)
-    return lines
-
-
-def _traced(doc: dict) -> tuple[str, list[str]]:
-    """The "Loads and stiffness, traced" section (postprocess/traceability.py) as HTML and
-    as text lines for the PDF."""
-    from .postprocess.traceability import traced_section
-
-    data = traced_section(doc)
-    html_parts, lines = [], []
-    for block in data["blocks"]:
-        html_parts.append(f"<h3>{_esc(block['heading'])}</h3>" + "".join(f"<p>{_esc(t)}</p>" for t in block["text"]))
-        lines += [block["heading"]] + [w for t in block["text"] for w in _wrap(t, 110)]
-        if block["rows"]:
-            html_parts.append(_table(block["headers"], block["rows"], "traced"))
-            # One wrapped line per row: calculations are too long for fixed columns.
-            lines += _wrap(" | ".join(block["headers"]), 110)
-            lines += [w for row in block["rows"] for w in _wrap("  " + " | ".join(_plain(c) for c in row), 110)]
-        lines.append("")
-    return f"<section><h2>{_esc(data['title'])}</h2>{''.join(html_parts)}</section>", [data["title"], lines]
-
-
-def write_review_package(folder: Path, results, doc: dict) -> list[str]:
-    """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``."""
-    written = write_tables(folder, doc)
-    tables = report_tables(doc)
-    with PdfPages(folder / "report.pdf", metadata={"Title": f"planshear report: {doc['plan']['name']}",
-                                                   "Creator": f"planshear {__version__}"}) as pdf:
-        classification = doc.get("classification") or {"directions": {}}
-        summary = [
-            f"Plan: {doc['plan']['name']} ({doc['plan']['file']})",
-            f"Units: forces {doc['units']['force']}, positions {doc['units']['position']}, "
-            f"displacements {doc['units']['displacement']}",
-            "",
-            *[line for axis, check in classification["directions"].items()
-              for line in [f"Load along {axis}: {check['verdict']}"] + [w for n in check.get("notes", ()) for w in _wrap(f"  {n}", 110)]],
-            *_not_run_lines(doc),
-            "",
-            *_wrap(CAUTION, 110),
-        ]
-        sections = [("planshear report", summary)]
-        for key, title in (("materials", "Materials"), ("stiffness", "Wall stiffness"), ("loads", "Loads"),
-                           ("cases", "Load cases"),
-                           ("classification", "Flexibility check"),
-                           ("span_deflection", "Span deflection by beam theory (flexible method)"),
-                           ("irregularities", "Horizontal irregularities, ASCE 7-16 Table 12.3-1 (Ax and §12.3.3.4 applied where they apply)"),
-                           ("walls", "Wall forces"),
-                           ("collectors", "Collector peaks"), ("chords", "Chord peaks"),
-                           ("engineer_envelope", "Engineer-chosen envelope (not the code check)"),
-                           ("drift", "Story drift (ASCE 7-16 §12.8.6, §12.12.1)"),
-                           ("chord_walls", "Walls along chord lines: chord force against M/d"),
-                           ("walls_across", "Walls across the load: force from chord elongation"),
-                           ("transfer", "Transfer diaphragms"), ("net_shears", "Net shears in transfer regions"),
-                           ("case_notes", "Notes per case"),
-                           ("unit_shear", "Unit shear per zone"), ("residuals", "Equilibrium residuals")):
-            headers, rows = tables[key]
-            if key in ("engineer_envelope", "drift") and not rows:
-                continue
-            if key == "irregularities":  # the consequence is a sentence: wrapped below each row
-                sections.append((title, _irregularity_lines(headers, rows)))
-                continue
-            sections.append((title, _plain_rows(headers, rows)))
-        sections.append(tuple(_traced(doc)[1]))
-        _text_pages(pdf, sections)
-        figures = _figures(doc, results, folder, pdf)
-        _text_pages(pdf, [(
-            "Methods, sources and limitations",
-            [line for name, text in METHODS_TEXT for line in _wrap(f"{name}: {text}", 110)]
-            + [""] + [line for text in LIMITATIONS_TEXT for line in _wrap(f"- {text}", 110)]
-            + [""] + _wrap(CAUTION, 110),
-        )])
-        checks_html = _design_checks_section(doc, results, folder, pdf)
-    written.append("report.pdf")
-    (folder / "report.html").write_text(_html(doc, tables, figures, checks_html), encoding="utf-8")
-    written.append("report.html")
-    return written
-
-
-IRREGULARITY_TEXT = (
-    "Detected and reported. Of the consequences, the torsional amplification Ax (§12.8.4.3, SDC C–F: the ±ecc cases "
-    "are run again with the eccentricity × Ax) and the 25 % increase of §12.3.3.4 on collector forces (SDC D–F, not "
-    "on forces that include Ω0) are applied; the others are the engineer's to apply. Torsion: δ at the plan's two extreme edges "
-    "across the load, worst of the accidental-torsion cases; re-entrant corners from the outline; open area = "
-    "openings / area enclosed by the outline. The SDC application column is from memory of the standard."
-)
-
-
-def _not_run_lines(doc: dict) -> list[str]:
-    """Plain lines on the assumptions that were not run and the flexibility check that
-    could not be calculated (empty when everything ran)."""
-    lines = []
-    for assumption, reason in doc.get("unavailable", {}).items():
-        lines += _wrap(f"Not run: {assumption}: {reason}", 110)
-    classification = doc.get("classification") or {}
-    if classification.get("calculated") is False:
-        lines += _wrap(f"Flexibility check not calculated: {classification['reason']}. {classification['note']}", 110)
-    return lines
-
-
-def _wrap(text: str, width: int) -> list[str]:
-    import textwrap
-
-    return textwrap.wrap(text, width) or [""]
-
-
-def _design_checks_section(doc: dict, results, folder: Path, pdf: PdfPages) -> str:
-    """"Design checks" (failures first) and the chords and collectors by member: PDF pages
-    (table, then the D/C map) and the HTML section; empty HTML without capacities for the
-    checks part."""
-    from .figures_checks import dc_map_figure
-
-    f = doc["units"]["force"]
-    members = envelope_table(doc)
-    members = (members[0], [r for r in members[1] if r[0] in ("member", "splice")])
-    intro = ("Each member once, by grid line and bay, with both roles: chord (load across it) and collector (load "
-             "along it; with Ω0 per ASCE 7-16 §12.10.2.1 where the case requires it); the design value is the larger.")
-    # The PDF page is ~110 characters wide: the columns a reviewer needs first.
-    narrow = (["member", "", f"design ({f})", "role", "governs", f"chord ({f})", f"coll. ({f})", f"coll.·Ω0 ({f})"],
-              [[r[1], r[2], r[3], r[4], f"{r[5]} {r[6]}", r[8], r[9], r[10]] for r in members[1]])
-    sections = [("Chords and collectors by member", _wrap(intro, 110) + _plain_rows(*narrow))]
-    body = f"<section><h2>Chords and collectors by member</h2><p>{_esc(intro)}</p>{_table(*members, 'members')}</section>"
-    if not doc.get("checks"):
-        _text_pages(pdf, sections)
-        return body
-    checks = checks_table(doc)
-    failures = doc["checks"]["failures"]
-    lead = (f"Basis: {doc['checks']['basis']}. {doc['checks']['rule']}. "
-            + (f"{failures} check(s) FAIL (listed first)." if failures else "Every check with a capacity passes."))
-    narrow = (["item", "quantity", "demand", "capacity", "unit", "D/C", "status", "governs"],
-              [[c["item"], c["quantity"], _rounded(c["demand"], c["unit"]), _rounded(c["capacity"], c["unit"]),
-                c["unit"], _rounded(c["ratio"], "ratio"), c["status"],
-                f"{c['assumption'] or ''} {c['case'] or ''}"] for c in doc["checks"]["items"]])
-    sections.insert(0, ("Design checks", _wrap(lead, 110) + _plain_rows(*narrow)))
-    _text_pages(pdf, sections)
-    fig = dc_map_figure(results.plan, results.checks)
-    figure = save(fig, folder / "figures", "dc_map", "Demand/capacity map")
-    pdf.savefig(fig)
-    return (f"<section><h2>Design checks</h2><p>{_esc(lead)}</p>{_table(*checks, 'checks')}"
-            f"<figure>{figure.svg}<figcaption>{_esc(figure.title)}</figcaption></figure></section>" + body)
-
-
-def _html(doc: dict, tables: dict, figures: dict[str, list[FigureFile]], checks_html: str = "") -> str:
-    def section(title: str, body: str) -> str:
-        return f"<section><h2>{_esc(title)}</h2>{body}</section>"
-
-    def figs(items: list[FigureFile]) -> str:
-        return "".join(f"<figure>{f.svg}<figcaption>{_esc(f.title)}</figcaption></figure>" for f in items)
-
-    def tab(key: str) -> str:
-        headers, rows = tables[key]
-        return _table(headers, rows, key)
-
-    plan = doc["plan"]
-    area_key = next(k for k in plan if k.startswith("area_"))
-    classification = doc.get("classification") or {"directions": {}}
-    verdicts = "".join(f"<li>load along {_esc(a)}: <b>{_esc(c['verdict'])}</b> (governing span {_esc(c['governing_span'])})"
-                       + "".join(f"<br><small>{_esc(n)}</small>" for n in c.get("notes", ())) + "</li>"
-                       for a, c in classification["directions"].items())
-    if classification.get("calculated") is False:
-        verdicts += (f"<li><b>not calculated</b>: {_esc(classification['reason'])}. "
-                     f"{_esc(classification['note'])}</li>")
-    not_run = "".join(f"<li><b>{_esc(a)}</b>: {_esc(r)}</li>" for a, r in doc.get("unavailable", {}).items())
-    if "overall" in classification:
-        overall = classification["overall"]
-        verdicts += f"<li>overall: <b>{_esc(overall['verdict'])}</b>; governing: {_esc(overall['governing'])}</li>"
-    notes = "".join(f"<li>{_esc(n)}</li>" for m in doc["assumptions"].values() for n in m.get("notes", []))
-    methods = "".join(f"<dt>{_esc(n)}</dt><dd>{_esc(t)}</dd>" for n, t in METHODS_TEXT)
-    limits = "".join(f"<li>{_esc(t)}</li>" for t in LIMITATIONS_TEXT)
+    tb = report.title_block
+    cells = "".join(f"<td><small>{_esc(label)}</small>{_esc(value) or '&nbsp;'}</td>" for label, value in tb.fields())
+    width, height = PAGE_SIZES[page_size]
+    css = _CSS + (f"@page{{size:{width}in {height}in;margin:.6in .55in .75in;"
+                  f"@bottom-left{{content:'{_css_text(tb.job or tb.plan_name)} · {_css_text(tb.plan_file)} · "
+                  f"rev {_css_text(tb.revision or '-')} · {_css_text(tb.date)}';font-size:8pt}}"
+                  "@bottom-right{content:'page ' counter(page) ' of ' counter(pages);font-size:8pt}}")
     parts = [
         "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\">",
-        f"<title>planshear report: {_esc(plan['name'])}</title><style>{_CSS}</style></head><body>",
-        f"<h1>Diaphragm analysis: {_esc(plan['name'])}</h1>",
-        f'<p class="caution">{_esc(CAUTION)}</p>',
-        section("Project and plan", f"<p>Plan file <code>{_esc(plan['file'])}</code>; diaphragm area "
-                f"{_num(plan[area_key])} {_esc(area_key[5:])}; material: {_esc(plan['material'])}. "
-                f"Load cases: {_esc(', '.join(plan['cases']))}. planshear {__version__}.</p>"),
-        section("Assumptions not run", f"<ul>{not_run}</ul>") if not_run else "",
-        checks_html,
-        section("Plan drawing", figs(figures["plan"])),
-        section("Materials and wall stiffness", tab("materials") + tab("stiffness")),
-        section("Loads and load cases", tab("loads") + tab("cases")),
-        _traced(doc)[0],
-        section("Flexibility (ASCE 7-16 §12.3.1)", f"<ul>{verdicts}</ul>" + tab("classification")
-                + "<p>The same check by beam theory on the flexible method's simple spans (chord bending and "
-                "sheathing shear; no finite-element model):</p>" + tab("span_deflection")),
-        section("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", f"<p>{_esc(IRREGULARITY_TEXT)}</p>"
-                + tab("irregularities")),
-        section("Wall forces", "<p>Largest magnitude over the cases of each assumption; design = envelope over "
-                "the assumptions the code allows for the load direction.</p>" + tab("walls")),
-        section("Collectors", tab("collectors") + figs(figures["collectors"])),
-        section("Chords", tab("chords") + figs(figures["chords"])),
-        section("Story drift (ASCE 7-16 §12.8.6, §12.12.1)", f"<p>{_esc(doc['drift']['note'])}</p>" + tab("drift"))
-        if doc.get("drift") else "",
-        section("Engineer-chosen envelope", f"<p>{_esc(doc['engineer_envelope']['label'])}</p>" + tab("engineer_envelope"))
-        if doc.get("engineer_envelope") else "",
-        section("Walls along chord lines", f"<p>{_esc(CHORD_WALLS_TEXT)}</p>" + tab("chord_walls") + tab("walls_across")),
-        section("Transfer diaphragms (flexible and rigid methods)", _TRANSFER_INTRO + tab("transfer") + tab("net_shears")),
-        section("Notes per case", tab("case_notes")),
-        section("Unit shear", tab("unit_shear") + figs(figures["shear"])),
-        section("Deflected shape", figs(figures["deflected"])),
-        section("Equilibrium residuals", tab("residuals")),
-        section("Methods and sources", f"<dl>{methods}</dl>"),
-        section("Assumptions and limitations", f"<ul>{limits}{notes}</ul>"),
-        f'<p class="caution">{_esc(CAUTION)}</p>',
-        "</body></html>",
+        f"<title>planshear report: {_esc(tb.plan_name)}</title><style>{css}</style></head><body>",
+        f'<table class="titleblock"><tr>{cells}<td class="pages"><small>page</small>1 of 1 (screen)</td></tr></table>',
+        f"<h1>{_esc(report.title)}</h1>",
+        f'<p class="caution">{_esc(report.caution)}</p>',
     ]
-    return "\n".join(parts)
+    for section in report.sections:
+        parts.append(f"<section><h2>{_esc(section.title)}</h2>" + "".join(block(b) for b in section.blocks)
+                     + "</section>")
+    parts += [f'<p class="caution">{_esc(report.caution)}</p>', "</body></html>"]
+    path.write_text("\n".join(parts), encoding="utf-8")
+
+
+def _css_text(text: str) -> str:
+    return text.replace("\\", "\\\\").replace("'", "\\'")
+
+
+_CSS = """
+body{font-family:Georgia,'DejaVu Serif',serif;color:#222;background:#fbfaf6;max-width:62rem;margin:1rem auto;padding:0 1rem;line-height:1.4}
+h1{font-size:1.6rem;border-bottom:3px double #222;padding-bottom:.3rem}
+h2{font-size:1.15rem;margin-top:2rem;border-bottom:1px solid #999}
+.scroll{overflow-x:auto}
+table{border-collapse:collapse;font-size:.8rem;margin:.5rem 0 1rem;font-family:'DejaVu Sans Mono',monospace}
+th,td{border:1px solid #aaa;padding:.15rem .4rem;text-align:right;vertical-align:top}
+th{background:#ece8dc}
+td.text,th{white-space:normal;overflow-wrap:break-word;max-width:24rem}
+td:first-child,th:first-child,td.text{text-align:left}
+table.titleblock{width:100%;font-family:'DejaVu Sans',sans-serif;border:2px solid #1f6f8b;border-left:8px solid #1f6f8b}
+table.titleblock td{text-align:left;border:1px solid #9fb9c3;background:#fff;padding:.2rem .5rem}
+table.titleblock small{display:block;font-size:.62rem;text-transform:uppercase;letter-spacing:.06em;color:#5a6b70}
+.caution{border:2px solid #222;padding:.6rem 1rem;background:#fff;font-weight:bold}
+figure{margin:1rem 0;page-break-inside:avoid}
+figure svg,figure img{width:100%;height:auto}
+figcaption{font-size:.8rem;font-style:italic}
+@media print{body{background:#fff;max-width:none;margin:0}h2{page-break-after:avoid}.scroll{overflow:visible}
+table{font-size:6.5pt}td.pages{display:none}}
+"""
+
+
+# -- the package ---------------------------------------------------------------------------
+
+
+def write_review_package(folder: Path, results, doc: dict, figures: str = "key", page_size: str = "letter",
+                         workers: int | None = None, timings: dict | None = None) -> list[str]:
+    """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``.
+    ``figures``: one of :data:`FIGURE_CHOICES`; ``page_size``: a key of
+    :data:`PAGE_SIZES`; ``timings`` (optional dict) receives seconds per step."""
+    from .report_pdf import write_pdf
+
+    if figures not in FIGURE_CHOICES:
+        raise AnalysisError(f"--figures {figures!r}: choose one of {', '.join(FIGURE_CHOICES)}")
+    if page_size not in PAGE_SIZES:
+        raise AnalysisError(f"--page-size {page_size!r}: choose one of {', '.join(PAGE_SIZES)}")
+    clock = time.perf_counter()
+
+    def lap(name: str) -> None:
+        nonlocal clock
+        if timings is not None:
+            timings[name] = timings.get(name, 0.0) + time.perf_counter() - clock
+        clock = time.perf_counter()
+
+    written = write_tables(folder, doc)
+    lap("csv tables")
+    report = build_report(doc, results, figures)
+    lap("content")
+    figures_dir = folder / "figures"
+    sizes = render_figures(report, doc, results, figures_dir, figures, workers, timings)
+    clock = time.perf_counter()
+    write_pdf(folder / "report.pdf", report, figures_dir, sizes, page_size)
+    for raw in figures_dir.glob(".*.rgb.npy"):  # pixels the PDF did not use
+        raw.unlink()
+    written.append("report.pdf")
+    lap("pdf")
+    write_html(folder / "report.html", report, figures_dir, sizes, page_size)
+    written.append("report.html")
+    lap("html")
+    return written

@@ -193,6 +193,13 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             out[key] = [transfer_to_json(td, units) for td in value]
         elif key == "span_unit_shear":
             continue  # V/ℓ along the spans, kept for the design checks (checks.csv, results.json "checks")
+        elif key == "span_shear":  # (s, V, ℓ) in m, N, m → stations, V, length present, unit shear V/ℓ
+            s, shear, length = value
+            with np.errstate(divide="ignore", invalid="ignore"):
+                unit = np.where(length > 0, shear / np.where(length > 0, length, 1.0), 0.0)
+            out[key] = {"stations": [_r(units.length_out(x)) for x in s], "V": [_r(units.force_out(x)) for x in shear],
+                        "length": [_r(units.length_out(x)) for x in length],
+                        "unit_shear": [_r(units.line_force_out(x)) for x in unit]}
         elif key == "line_forces":
             out[key] = {name: _r(units.force_out(f)) for name, f in value.items()}
         else:

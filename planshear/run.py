@@ -142,11 +142,14 @@ class Results:
             "directions": {},
         }
 
-    def write(self, folder: str | Path, report: bool = True, mesh_units: str = "si") -> Path:
+    def write(self, folder: str | Path, report: bool = True, mesh_units: str = "si", figures: str = "key",
+              page_size: str = "letter", timings: dict | None = None) -> Path:
         """Write the output folder completely or not at all: everything goes into a
         temporary folder next to ``folder`` that replaces it only once complete.
         ``report=False`` leaves out the report, tables and figures; ``mesh_units`` ("si" or
-        "plan") are the units of the mesh files (see planshear.mesh_export)."""
+        "plan") are the units of the mesh files (see planshear.mesh_export); ``figures``
+        (none, key, all) and ``page_size`` (letter, a4) shape the report; ``timings``
+        receives seconds per writing step."""
         folder = Path(folder)
         parent = folder.resolve().parent
         parent.mkdir(parents=True, exist_ok=True)
@@ -167,7 +170,8 @@ class Results:
                     write_review_package,  # the report module imports this one's types
                 )
 
-                write_review_package(staging, self, json.loads(text))
+                write_review_package(staging, self, json.loads(text), figures=figures, page_size=page_size,
+                                     timings=timings)
             _replace_folder(staging, folder)
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
@@ -393,6 +397,17 @@ def drift_to_json(checks: tuple[DriftCheck, ...], units: OutputUnits) -> dict | 
     }
 
 
+def _title_block(plan: Plan) -> dict:
+    """[plan] job, engineer, checker, date (default: today, UTC) and revision for the report."""
+    import datetime
+
+    given = dict(plan.title_block)
+    block = {key: given.get(key, "") for key in ("job", "engineer", "checker", "revision")}
+    block["date"] = given.get("date") or datetime.datetime.now(datetime.UTC).date().isoformat()
+    block["date_given"] = "date" in given
+    return block
+
+
 def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> dict:
     """Short description of a plan in output units (used by `check` and results.json)."""
     units = OutputUnits.for_plan(plan.length_unit)
@@ -404,6 +419,7 @@ def plan_summary(plan: Plan, cases: tuple[LoadCase, ...] | list[LoadCase]) -> di
         "design_basis_note": "envelope values include the lateral terms of the load combinations of the design basis "
                              "(factor shown as combination_factor); gravity terms are out of scope and not included",
         "file": plan.source,
+        "title_block": _title_block(plan),
         "length_unit": plan.length_unit,
         f"area_{area_unit}": round(units.length_out(units.length_out(plan.region.area)), 6),
         "walls_along_x": [w.id for w in plan.walls if abs(w.direction[0]) > 1e-9],

@@ -82,6 +82,12 @@ PLAN_SCHEMA: dict = {
                 "length_unit": {"type": "string"},
                 "description": {"type": "string"},
                 "code": {"type": "string"},
+                # Title block of the report (all optional); date: a TOML date or text, default today.
+                "job": {"type": "string"},
+                "engineer": {"type": "string"},
+                "checker": {"type": "string"},
+                "date": {},
+                "revision": {"type": "string"},
             },
             "additionalProperties": False,
         },

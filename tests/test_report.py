@@ -2,6 +2,7 @@
 
 import csv
 import json
+import re
 import shutil
 import subprocess
 from html.parser import HTMLParser
@@ -56,14 +57,17 @@ class _Tables(HTMLParser):
 def test_package_is_complete(package):
     out, _ = package
     for name in ("results.json", "report.html", "report.pdf", "walls.csv", "lines.csv", "chords.csv",
-                 "classification.csv", "mesh.vtu", "mesh.xdmf", "mesh.msh", "figures/plan.png", "figures/plan.svg"):
+                 "classification.csv", "mesh.vtu", "mesh.xdmf", "mesh.msh", "figures/plan.png"):
         assert (out / name).stat().st_size > 0, name
     assert (out / "report.pdf").read_bytes().startswith(b"%PDF")
     html_text = (out / "report.html").read_text()
     assert "licensed engineer" in html_text
-    # Nothing to fetch: figures are inline SVG; no src or href points outside the page.
-    for marker in ('src="http', "src='http", 'href="http', "href='http", "<img", "<link", "<script"):
+    # Nothing to fetch: figures are inline (the plan as SVG, the others as PNG data URIs);
+    # no src or href points outside the page.
+    for marker in ('src="http', "src='http", 'href="http', "href='http", "<link", "<script"):
         assert marker not in html_text, marker
+    images = re.findall(r"<img [^>]*>", html_text)
+    assert images and all('src="data:image/png;base64,' in tag for tag in images)
 
 
 def test_report_tables_equal_results_json(package):
@@ -166,3 +170,23 @@ def test_report_renders_in_headless_chromium(package, tmp_path):
         check=True, capture_output=True, timeout=120,
     )
     assert shot.stat().st_size > 50_000
+
+
+def test_html_prints_on_the_page_size_of_its_page_rule(package, tmp_path):
+    """Printed by the headless browser, report.html comes out on Letter pages (8.5 × 11 in
+    = 612 × 792 pt) from its @page rule, with the title block on the first page."""
+    browser = shutil.which("chromium") or shutil.which("chromium-browser")
+    if browser is None:
+        pytest.skip("chromium is not installed here (.ci/run installs Debian's chromium package)")
+    out, _ = package
+    pdf = tmp_path / "printed.pdf"
+    subprocess.run(
+        [browser, "--headless", "--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-sync",
+         "--disable-background-networking", "--disable-component-update", f"--user-data-dir={tmp_path / 'profile'}",
+         "--no-pdf-header-footer", f"--print-to-pdf={pdf}", (out / "report.html").as_uri()],
+        check=True, capture_output=True, timeout=180,
+    )
+    data = pdf.read_bytes()
+    boxes = re.findall(rb"/MediaBox\s*\[\s*0 0 ([\d.]+) ([\d.]+)\s*\]", data)
+    assert len(boxes) > 3
+    assert {(round(float(w)), round(float(h))) for w, h in boxes} == {(612, 792)}
