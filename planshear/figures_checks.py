@@ -9,6 +9,7 @@ import numpy as np
 from matplotlib import colormaps
 from matplotlib.colors import Normalize
 from matplotlib.figure import Figure
+from shapely.ops import polylabel, unary_union
 
 from .figures import INK, _figure
 
@@ -30,16 +31,29 @@ def _largest_ratios(checks) -> dict[str, tuple[float | None, bool]]:
     return out
 
 
+def _label_point(area, lines: list):
+    """A point well inside ``area`` (m) and away from the wall and member lines drawn over
+    it (pole of inaccessibility of what the lines leave free), so its label covers none."""
+    size = max(area.bounds[2] - area.bounds[0], area.bounds[3] - area.bounds[1])
+    free = area.difference(unary_union(lines).buffer(0.06 * size)) if lines else area
+    pieces = [g for g in getattr(free, "geoms", [free]) if g.geom_type == "Polygon" and not g.is_empty]
+    target = max(pieces, key=lambda g: g.area) if pieces else area
+    if target.geom_type != "Polygon":
+        return target.representative_point()
+    return polylabel(target, tolerance=0.01 * size)
+
+
 def dc_map_figure(plan, checks) -> Figure:
     """The D/C map of a :class:`planshear.postprocess.checks.DesignChecks` on the plan."""
     scale = 1.0 / plan.length_scale
-    fig, ax = _figure(7.5, 5.5)
+    fig, ax = _figure(7.5, 5.5, (0.75, 0.55, 1.3, 0.45))  # room on the right for the colour bar
     cmap = colormaps["cividis"]
     norm = Normalize(0.0, DC_LIMIT)
     ratios = _largest_ratios(checks)
     outline = np.vstack([plan.outline, plan.outline[:1]]) * scale
     ax.plot(outline[:, 0], outline[:, 1], color=INK, lw=0.8, zorder=2)
     labels = []
+    lines = [p for p in checks.places.values() if p.geom_type not in ("Polygon", "MultiPolygon")]
     for item, place in checks.places.items():
         ratio, failed = ratios.get(item, (None, False))
         colour = NO_CAPACITY if ratio is None else cmap(norm(min(ratio, DC_LIMIT)))
@@ -52,7 +66,7 @@ def dc_map_figure(plan, checks) -> Figure:
                     h = np.asarray(hole.coords) * scale
                     ax.fill(h[:, 0], h[:, 1], color="white", zorder=1)
             if text:
-                ax.annotate(text.replace(": ", ":\n"), np.asarray(place.centroid.coords[0]) * scale, ha="center",
+                ax.annotate(text.replace(": ", ":\n"), np.asarray(_label_point(place, lines).coords[0]) * scale, ha="center",
                             va="center", fontsize=6.5, color=INK, fontweight="bold" if failed else "normal", zorder=6,
                             bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.8})
             continue
@@ -77,9 +91,11 @@ def dc_map_figure(plan, checks) -> Figure:
                     fontweight="bold" if failed else "normal", zorder=6,
                     bbox={"boxstyle": "round,pad=0.12", "fc": "white", "ec": "none", "alpha": 0.85})
     mappable = ax.scatter([], [], c=[], cmap=cmap, norm=norm)
-    bar = fig.colorbar(mappable, ax=ax, fraction=0.03, pad=0.02, shrink=0.7)
+    width, height = fig.get_size_inches()
+    bar = fig.colorbar(mappable, cax=fig.add_axes([1 - 0.95 / width, 0.2, 0.15 / width, 0.6]))
     bar.set_label(f"demand / capacity (≥ {DC_LIMIT:g} in the last colour)", fontsize=7)
     bar.ax.tick_params(labelsize=7)
+    ax.margins(0.07)  # room for the labels beside the outline members
     ax.set_aspect("equal")
     ax.set_xlabel(f"x ({plan.length_unit})", fontsize=8)
     ax.set_ylabel(f"y ({plan.length_unit})", fontsize=8)
