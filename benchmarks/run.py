@@ -38,8 +38,9 @@ def _timed(fn, *args, **kwargs):
     return value, time.perf_counter() - start
 
 
-def worker(kind: str, dofs: int, references: bool) -> dict:
-    """One plan at one size, in this process; returns times (s) and peak memory (MB)."""
+def worker(kind: str, dofs: int, references: bool, save: str | None = None) -> dict:
+    """One plan at one size, in this process; returns times (s) and peak memory (MB).
+    ``save``: also write the stiffness matrix (CSR) and the loads to this .npz file."""
     from planshear.fem import factorize
     from planshear.fem.model import (
         assemble,
@@ -73,6 +74,9 @@ def worker(kind: str, dofs: int, references: bool) -> dict:
     assembly, times["assembly"] = _timed(assemble, plan, mesh)
     loads, times["loads"] = _timed(load_vectors, plan, mesh, cases)
     check_restraint(assembly, plan)
+    if save:
+        K = assembly.stiffness
+        np.savez(save, data=K.data, indices=K.indices, indptr=K.indptr, n=K.shape[0], loads=loads)
     backend = choose_backend(assembly.stiffness.shape[0])
     factor, times["factorization"] = _timed(factorize, assembly.stiffness, backend)
     _, times["solve"] = _timed(factor.solve, loads)
@@ -301,9 +305,17 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--quick", action="store_true", help="small sizes only; RESULTS.md is not rewritten")
     parser.add_argument("--sizes", type=int, nargs="*",
                         help="target DOFs (default: 10k 50k 250k 1M); RESULTS.md is rewritten only for the default")
+    parser.add_argument("--backends", action="store_true",
+                        help="run benchmarks/backends.py instead (solver backends side by side)")
     parser.add_argument("--worker", nargs=2, metavar=("KIND", "DOFS"), help=argparse.SUPPRESS)
     parser.add_argument("--no-references", action="store_true", help=argparse.SUPPRESS)
-    args = parser.parse_args(argv)
+    args, rest = parser.parse_known_args(argv)
+    if args.backends:
+        from .backends import main as backends_main
+
+        return backends_main(rest + (["--sizes", *map(str, args.sizes)] if args.sizes else []))
+    if rest:
+        parser.error(f"unrecognized arguments: {' '.join(rest)}")
     if args.worker:
         kind, dofs = args.worker
         print(json.dumps(worker(kind, int(dofs), not args.no_references)))
