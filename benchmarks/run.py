@@ -75,6 +75,7 @@ def worker(kind: str, dofs: int, references: bool, save: str | None = None) -> d
     loads, times["loads"] = _timed(load_vectors, plan, mesh, cases)
     check_restraint(assembly, plan)
     if save:
+        Path(save).with_suffix(".toml").write_text(make(requested), encoding="utf-8")
         K = assembly.stiffness
         np.savez(save, data=K.data, indices=K.indices, indptr=K.indptr, n=K.shape[0], loads=loads)
     backend = choose_backend(assembly.stiffness.shape[0])

@@ -380,7 +380,14 @@ def area_overlap(cells: tuple, geometry, centroids: np.ndarray, tol: float):
     the area (m²) and the centroid (m) of their part inside."""
     polygons, tree, _ = cells
     inside = shapely.contains_xy(geometry.buffer(tol), centroids[:, 0], centroids[:, 1]).astype(float)
-    crossed = np.unique(tree.query(geometry.boundary, predicate="crosses"))
+    # Candidates by the envelopes of the boundary's single segments (the envelope of the
+    # whole boundary would hold every element inside it), then the exact test on those only.
+    boundary = geometry.boundary
+    coords = [shapely.get_coordinates(ring) for ring in shapely.get_parts(boundary)]
+    pairs = [np.stack([c[:-1], c[1:]], axis=1) for c in coords if len(c) > 1]
+    segments = shapely.linestrings(np.concatenate(pairs)) if pairs else np.empty(0, dtype=object)
+    candidates = np.unique(tree.query(segments)[1]) if len(segments) else np.zeros(0, dtype=np.intp)
+    crossed = candidates[shapely.crosses(boundary, polygons[candidates])]
     inside[crossed] = 0.0
     parts = shapely.intersection(polygons[crossed], geometry)
     area = shapely.area(parts)
