@@ -7,6 +7,7 @@ arrays are (n_dofs, n_cases); all SI (N, m).
 from __future__ import annotations
 
 import dataclasses
+import weakref
 from dataclasses import dataclass
 
 import numpy as np
@@ -364,12 +365,20 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, tol, cells_of=None, weigh
     return f
 
 
+#: element_polygons of each live mesh (a mesh is immutable): loads, torsion bases and
+#: sections of one run share one set of polygons and one R-tree.
+_POLYGONS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
 def element_polygons(mesh: Mesh) -> tuple[np.ndarray, shapely.STRtree, int]:
     """Corner polygons of all elements (straight-sided), an R-tree over them and the
-    number of corners."""
-    corners = 3 if mesh.element_type.startswith("tri") else 4
-    polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
-    return polygons, shapely.STRtree(polygons), corners
+    number of corners; formed once per mesh."""
+    cached = _POLYGONS.get(mesh)
+    if cached is None:
+        corners = 3 if mesh.element_type.startswith("tri") else 4
+        polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
+        cached = _POLYGONS[mesh] = (polygons, shapely.STRtree(polygons), corners)
+    return cached
 
 
 def area_overlap(cells: tuple, geometry, centroids: np.ndarray, tol: float):
