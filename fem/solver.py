@@ -205,7 +205,9 @@ class _Pardiso:
         self.iparm = np.zeros(64, dtype=np.int32)
         self.iparm[0] = 1  # our settings below, defaults elsewhere
         self.iparm[1] = 2  # METIS nested dissection
-        self.iparm[7] = 0  # no PARDISO refinement: model.solve refines by the same rule for all
+        # iparm(8) = 0: PARDISO refines only after perturbed pivots, which its Cholesky of an
+        # SPD matrix never uses; model.solve refines by the same rule for every backend.
+        self.iparm[7] = 0
         self.iparm[34] = 1  # zero-based indices
         self.alive = True  # from here on __del__ frees PARDISO's memory, also after an error
         self._call(12, np.zeros((self.n, 1), order="F"))
