@@ -25,6 +25,7 @@ __all__ = [
     "membrane_stiffness",
     "membrane_strain_matrix",
     "area_load",
+    "area_weights",
     "edge_shape",
     "bar_stiffness",
     "bar_axial_force",
@@ -178,9 +179,22 @@ def membrane_stiffness(element_type: str, xy: np.ndarray, D: np.ndarray) -> np.n
     _, dN_xy, det = _geometry(element_type, xy, points)
     if np.any(det <= 0):
         raise ValueError("an element has a non-positive Jacobian (inverted or degenerate element)")
-    B = membrane_strain_matrix(dN_xy)
-    DB = np.einsum("ekl,eqlj->eqkj", D, B)
-    return np.einsum("eqki,eqkj,eq->eij", B, DB, det * weights)
+    B = membrane_strain_matrix(dN_xy)  # (n_e, n_q, 3, d)
+    n_e, n_q, _, d = B.shape
+    # Σ_q Bᵀ D B w det J as one batched matrix product over (quadrature point, strain):
+    # about twice as fast as the equivalent three-operand einsum.
+    DB = np.matmul(D[:, None], B) * (det * weights)[:, :, None, None]
+    return np.matmul(B.reshape(n_e, n_q * 3, d).transpose(0, 2, 1), DB.reshape(n_e, n_q * 3, d))
+
+
+def area_weights(element_type: str, xy: np.ndarray) -> np.ndarray:
+    """∫ N_a dA (n_e, n_nodes) in m²: each node's share of each element's area, i.e. the
+    consistent nodal load of a unit pressure (formed once, scaled per load)."""
+    points, weights = quadrature(element_type)
+    N, dN = shape_functions(element_type, points)
+    jac = np.einsum("qai,eaj->eqij", dN, xy)  # only det J is needed here
+    det = jac[..., 0, 0] * jac[..., 1, 1] - jac[..., 0, 1] * jac[..., 1, 0]
+    return (det * weights) @ N
 
 
 def area_load(element_type: str, xy: np.ndarray, pressure: np.ndarray, direction: np.ndarray) -> np.ndarray:

@@ -7,6 +7,7 @@ arrays are (n_dofs, n_cases); all SI (N, m).
 from __future__ import annotations
 
 import dataclasses
+import weakref
 from dataclasses import dataclass
 
 import numpy as np
@@ -21,7 +22,7 @@ from planshear.plan import Material, Plan
 
 from .collectors import CollectorLayout, collector_layout
 from .elements import (
-    area_load,
+    area_weights,
     bar_stiffness,
     edge_shape,
     line_spring_stiffness,
@@ -244,14 +245,28 @@ def load_vectors(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> np.ndarray:
     loads = np.zeros((n, len(cases)))
     cache: dict[int, np.ndarray] = {}
     area_share = None
+    # Built at most once for every field: element polygons with their R-tree, and each
+    # node's share of each element's area (the nodal load of a unit pressure).
+    once: dict[str, object] = {}
+
+    def cells():
+        if "cells" not in once:
+            once["cells"] = element_polygons(mesh)
+        return once["cells"]
+
+    def weights():
+        if "weights" not in once:
+            once["weights"] = area_weights(mesh.element_type, mesh.nodes[mesh.elements])
+        return once["weights"]
+
     for j, case in enumerate(cases):
         key = id(case.field)
         if key not in cache:
-            cache[key] = _field_vector(case.field, mesh, centroids, dofs, tol)
+            cache[key] = _field_vector(case.field, mesh, centroids, dofs, tol, cells, weights)
         f = cache[key]
         if case.torsion != 0.0:
             if area_share is None:
-                area_share = nodal_area(mesh)
+                area_share = nodal_area(mesh, weights())
             f = f + torsion_vector(f, mesh.nodes, case.direction, case.torsion, area_share)[0]
         loads[:, j] = f
     return loads
@@ -269,13 +284,13 @@ def torsion_bases(plan: Plan, mesh: Mesh, cases: list[LoadCase]) -> dict[str, st
             for j, c in enumerate(torsional)}
 
 
-def nodal_area(mesh: Mesh) -> np.ndarray:
+def nodal_area(mesh: Mesh, weights: np.ndarray | None = None) -> np.ndarray:
     """Each node's share (n_nodes,) of the diaphragm area in m²: the consistent nodal load
-    of a unit pressure over every element (sums to the meshed area)."""
-    unit = area_load(mesh.element_type, mesh.nodes[mesh.elements], np.ones(len(mesh.elements)), np.array([1.0, 0.0]))
-    share = np.zeros(mesh.n_dofs)
-    np.add.at(share, element_dofs(mesh.elements).ravel(), unit.ravel())
-    return share[0::2]
+    of a unit pressure over every element (sums to the meshed area). ``weights``: the
+    elements' :func:`area_weights` when already formed."""
+    if weights is None:
+        weights = area_weights(mesh.element_type, mesh.nodes[mesh.elements])
+    return np.bincount(mesh.elements.ravel(), weights.ravel(), minlength=mesh.n_nodes)
 
 
 #: The accidental torsion follows the load's own distribution only while, at every loaded
@@ -360,11 +375,11 @@ def _line_load(mesh: Mesh, start: np.ndarray, end: np.ndarray, q: float, directi
 _GAUSS3 = (np.array([-np.sqrt(0.6), 0.0, np.sqrt(0.6)]), np.array([5.0, 8.0, 5.0]) / 9.0)
 
 
-def _field_vector(field_, mesh: Mesh, centroids, dofs, tol) -> np.ndarray:
+def _field_vector(field_, mesh: Mesh, centroids, dofs, tol, cells_of=None, weights_of=None) -> np.ndarray:
     n = mesh.n_dofs
     f = np.zeros(n)
     pressure = np.zeros(len(mesh.elements))
-    cells = element_polygons(mesh) if field_.areas else None
+    cells = (cells_of() if cells_of else element_polygons(mesh)) if field_.areas else None
     for geometry, p in field_.areas:
         inside, crossed, area, centroid = area_overlap(cells, geometry, centroids, tol)
         pressure += p * inside
@@ -376,7 +391,11 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, tol) -> np.ndarray:
             nodal = (p * area)[:, None, None] * N[:, :, None] * field_.direction[None, None, :]
             np.add.at(f, dofs[crossed].ravel(), nodal.reshape(len(crossed), -1).ravel())
     if np.any(pressure):
-        np.add.at(f, dofs.ravel(), area_load(mesh.element_type, mesh.nodes[mesh.elements], pressure, field_.direction).ravel())
+        unit = weights_of() if weights_of else area_weights(mesh.element_type, mesh.nodes[mesh.elements])
+        # Nodal totals by bincount (np.add.at is many times slower on a million entries).
+        nodal = np.bincount(mesh.elements.ravel(), (unit * pressure[:, None]).ravel(), minlength=mesh.n_nodes)
+        f[0::2] += nodal * field_.direction[0]
+        f[1::2] += nodal * field_.direction[1]
     for start, end, q in field_.lines:
         edges, forces = _line_load(mesh, np.asarray(start, float), np.asarray(end, float), q, field_.direction, tol)
         np.add.at(f, element_dofs(edges).ravel(), forces.ravel())
@@ -388,12 +407,20 @@ def _field_vector(field_, mesh: Mesh, centroids, dofs, tol) -> np.ndarray:
     return f
 
 
+#: element_polygons of each live mesh (a mesh is immutable): loads, torsion bases and
+#: sections of one run share one set of polygons and one R-tree.
+_POLYGONS: weakref.WeakKeyDictionary = weakref.WeakKeyDictionary()
+
+
 def element_polygons(mesh: Mesh) -> tuple[np.ndarray, shapely.STRtree, int]:
     """Corner polygons of all elements (straight-sided), an R-tree over them and the
-    number of corners."""
-    corners = 3 if mesh.element_type.startswith("tri") else 4
-    polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
-    return polygons, shapely.STRtree(polygons), corners
+    number of corners; formed once per mesh."""
+    cached = _POLYGONS.get(mesh)
+    if cached is None:
+        corners = 3 if mesh.element_type.startswith("tri") else 4
+        polygons = shapely.polygons(mesh.nodes[mesh.elements[:, :corners]])
+        cached = _POLYGONS[mesh] = (polygons, shapely.STRtree(polygons), corners)
+    return cached
 
 
 def area_overlap(cells: tuple, geometry, centroids: np.ndarray, tol: float):
@@ -404,7 +431,14 @@ def area_overlap(cells: tuple, geometry, centroids: np.ndarray, tol: float):
     the area (m²) and the centroid (m) of their part inside."""
     polygons, tree, _ = cells
     inside = shapely.contains_xy(geometry.buffer(tol), centroids[:, 0], centroids[:, 1]).astype(float)
-    crossed = np.unique(tree.query(geometry.boundary, predicate="crosses"))
+    # Candidates by the envelopes of the boundary's single segments (the envelope of the
+    # whole boundary would hold every element inside it), then the exact test on those only.
+    boundary = geometry.boundary
+    coords = [shapely.get_coordinates(ring) for ring in shapely.get_parts(boundary)]
+    pairs = [np.stack([c[:-1], c[1:]], axis=1) for c in coords if len(c) > 1]
+    segments = shapely.linestrings(np.concatenate(pairs)) if pairs else np.empty(0, dtype=object)
+    candidates = np.unique(tree.query(segments)[1]) if len(segments) else np.zeros(0, dtype=np.intp)
+    crossed = candidates[shapely.crosses(boundary, polygons[candidates])]
     inside[crossed] = 0.0
     parts = shapely.intersection(polygons[crossed], geometry)
     area = shapely.area(parts)

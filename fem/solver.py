@@ -1,66 +1,250 @@
-"""Sparse factorization backends. SciPy's SuperLU with a symmetric ordering is always
-available; CHOLMOD (scikit-sparse) is used automatically when it is installed.
+"""Sparse factorization backends for the symmetric positive definite stiffness matrix.
+
+Every backend factors once and solves all load cases in one call (a (n, n_cases) block,
+handed to the library in the memory order it works in, so no backend solves column by
+column). The accuracy rules (backward error, iterative refinement, wall equilibrium) are
+applied to every backend alike by :func:`planshear.fem.model.solve`.
+
+Backends (``benchmarks/backends.py`` measures them side by side; RESULTS.md has the numbers):
+
+* ``superlu``: SciPy's SuperLU with a symmetric ordering. Always installed; the fallback.
+* ``pardiso``: Intel MKL PARDISO (Cholesky, METIS ordering) through ctypes, when the
+  ``mkl`` wheel is installed (extra ``planshear[pardiso]``; x86-64 only).
+* ``cvxopt``: CHOLMOD as bundled in the cvxopt wheels (extra ``planshear[gpl]``: cvxopt
+  is GPL-3, so it is never a default dependency).
+* ``cholmod``: CHOLMOD through scikit-sparse (needs a system SuiteSparse; no wheels).
+
+Above :data:`FAST_FROM` unknowns the first installed of :data:`PREFERENCE` is used;
+below it, and whenever none is installed, SuperLU.
 """
 
 from __future__ import annotations
 
+import ctypes
+import glob
+import os
+import sys
+from collections.abc import Callable
 from dataclasses import dataclass
+from functools import cache
 from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
-__all__ = ["Factor", "factorize", "available_backends", "choose_backend"]
+from planshear.errors import AnalysisError
 
-#: Above this many unknowns CHOLMOD (when installed) factors faster than SuperLU on these
-#: matrices; below it SuperLU is as fast or faster (benchmarks/RESULTS.md).
-CHOLMOD_FROM = 150_000
+__all__ = ["Factor", "factorize", "available_backends", "choose_backend", "BACKENDS"]
+
+#: Every backend planshear knows, in the order tried for large models (fastest first as
+#: measured in benchmarks/RESULTS.md); SuperLU last, the fallback.
+BACKENDS = ("cholmod", "cvxopt", "pardiso", "superlu")
+PREFERENCE = BACKENDS
+#: From this many unknowns on, a faster backend (when installed) replaces SuperLU; below it
+#: SuperLU is as fast within noise (benchmarks/RESULTS.md, backends table).
+FAST_FROM = 40_000
+#: CHOLMOD's fill-reducing ordering: AMD was the fastest of "amd", "metis", "nesdis" and
+#: CHOLMOD's default (which tries several) on planshear's matrices (benchmarks/RESULTS.md).
+CHOLMOD_ORDERING = "amd"
+#: Environment variable that forces one backend (for benchmarks and tests).
+BACKEND_ENV = "PLANSHEAR_SOLVER"
 
 
 @dataclass
 class Factor:
-    """A factorized stiffness matrix; ``solve`` takes (n,) or (n, n_cases)."""
+    """A factorized stiffness matrix; ``solve`` takes (n,) or (n, n_cases) and returns the
+    same shape (C order)."""
 
     backend: str
-    _solve: Any
+    _solve: Callable[[np.ndarray], np.ndarray]
+    _keep: Any = None  # the library's own factor object, kept alive with this one
 
     def solve(self, rhs: np.ndarray) -> np.ndarray:
-        return self._solve(rhs)
+        rhs = np.asarray(rhs, dtype=float)
+        block = rhs.reshape(rhs.shape[0], -1)
+        out = self._solve(block)
+        return np.ascontiguousarray(out).reshape(rhs.shape)
 
 
-def available_backends() -> list[str]:
-    names = ["superlu"]
+def _installed(name: str) -> bool:
+    if name == "superlu":
+        return True
+    if name == "pardiso":
+        return _mkl_library() is not None
+    module = {"cholmod": "sksparse.cholmod", "cvxopt": "cvxopt.cholmod"}[name]
     try:
-        import sksparse.cholmod  # noqa: F401
-
-        names.insert(0, "cholmod")
+        __import__(module)
     except ImportError:
-        pass
-    return names
+        return False
+    return True
+
+
+@cache
+def available_backends() -> tuple[str, ...]:
+    """The installed backends, in :data:`PREFERENCE` order."""
+    return tuple(name for name in PREFERENCE if _installed(name))
 
 
 def choose_backend(n_dofs: int) -> str:
-    """The faster available backend for a matrix of this size."""
-    backends = available_backends()
-    return "cholmod" if "cholmod" in backends and n_dofs >= CHOLMOD_FROM else "superlu"
+    """The backend for a matrix of this size: :envvar:`PLANSHEAR_SOLVER` if set, else the
+    first installed of :data:`PREFERENCE` from :data:`FAST_FROM` unknowns on, else SuperLU."""
+    forced = os.environ.get(BACKEND_ENV)
+    if forced:
+        return forced
+    if n_dofs < FAST_FROM:
+        return "superlu"
+    return available_backends()[0]
 
 
 def factorize(matrix: sp.spmatrix, backend: str | None = None) -> Factor:
     """Factor a symmetric positive definite matrix once for any number of solves.
 
-    SuperLU runs with the symmetric minimum-degree ordering on A + Aᵀ and no pivoting
-    threshold (the natural `MMD_ATA` ordering is far slower on these matrices)."""
+    Raises AnalysisError for an unknown or uninstalled backend (a set-up problem, not a
+    property of the model), RuntimeError (or the library's own error) when the matrix
+    cannot be factored (singular / not positive definite)."""
     backend = backend or choose_backend(matrix.shape[0])
-    if backend == "cholmod":
-        from sksparse.cholmod import cholesky
+    if backend not in BACKENDS:
+        raise AnalysisError(f"solver backend {backend!r} (environment variable {BACKEND_ENV}) is unknown; "
+                            f"use one of {', '.join(BACKENDS)} or unset it")
+    if not _installed(backend):
+        raise AnalysisError(f"solver backend {backend!r} (environment variable {BACKEND_ENV}) is not installed; "
+                            f"use one of {', '.join(available_backends())} or install it (README, Faster solves)")
+    return _FACTORIZE[backend](matrix)
 
-        factor = cholesky(sp.csc_matrix(matrix))
-        return Factor("cholmod", factor)
-    lu = splu(
-        sp.csc_matrix(matrix),
-        permc_spec="MMD_AT_PLUS_A",
-        diag_pivot_thresh=0.0,
-        options={"SymmetricMode": True},
-    )
-    return Factor("superlu", lu.solve)
+
+def _superlu(matrix: sp.spmatrix) -> Factor:
+    # Symmetric minimum-degree ordering on A + Aᵀ and no pivoting threshold (the natural
+    # MMD_ATA ordering is far slower on these matrices).
+    lu = splu(sp.csc_matrix(matrix), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+              options={"SymmetricMode": True})
+    return Factor("superlu", lambda b: lu.solve(np.asfortranarray(b)), lu)
+
+
+def _cholmod(matrix: sp.spmatrix) -> Factor:
+    from sksparse.cholmod import CholmodError, cholesky
+
+    try:
+        factor = cholesky(sp.csc_matrix(matrix), ordering_method=CHOLMOD_ORDERING)
+    except CholmodError as exc:  # its own class: model.solve words RuntimeError for the user
+        raise RuntimeError(f"CHOLMOD: {exc}") from None
+    return Factor("cholmod", lambda b: factor(np.asfortranarray(b)), factor)
+
+
+def _cvxopt(matrix: sp.spmatrix) -> Factor:
+    import cvxopt
+    from cvxopt import cholmod
+
+    lower = sp.tril(matrix, format="coo")
+    A = cvxopt.spmatrix(cvxopt.matrix(lower.data), cvxopt.matrix(lower.row.astype(int)),
+                        cvxopt.matrix(lower.col.astype(int)), matrix.shape)
+    options = dict(cholmod.options)
+    cholmod.options["supernodal"] = 2  # always supernodal (the BLAS does the work)
+    try:
+        F = cholmod.symbolic(A)
+        cholmod.numeric(A, F)
+    except ArithmeticError as exc:
+        raise RuntimeError(f"CHOLMOD: the matrix is not positive definite ({exc})") from None
+    finally:
+        cholmod.options.clear()
+        cholmod.options.update(options)
+
+    def solve(b: np.ndarray) -> np.ndarray:
+        B = cvxopt.matrix(np.asfortranarray(b))  # column-major, as cvxopt stores it
+        cholmod.solve(F, B)
+        return np.asarray(B)
+
+    return Factor("cvxopt", solve, F)
+
+
+# -- MKL PARDISO through ctypes ------------------------------------------------------------
+
+@cache
+def _mkl_library() -> ctypes.CDLL | None:
+    """MKL's single dynamic library as installed by the ``mkl`` wheel, or None."""
+    names = ["libmkl_rt.so.2", "libmkl_rt.so", "libmkl_rt.2.dylib", "mkl_rt.2.dll"]
+    folders = [os.path.join(sys.prefix, "lib"), os.path.join(sys.prefix, "Library", "bin")]
+    candidates = [os.path.join(f, n) for f in folders for n in names]
+    candidates += sorted(glob.glob(os.path.join(sys.prefix, "lib", "libmkl_rt.so*")))
+    for path in candidates:
+        if os.path.exists(path):
+            try:
+                lib = ctypes.CDLL(path)
+                lib.pardiso  # noqa: B018 (the symbol must exist)
+            except (OSError, AttributeError):
+                continue
+            return lib
+    return None
+
+
+_PARDISO_ERRORS = {
+    -1: "input inconsistent", -2: "not enough memory", -3: "reordering problem",
+    -4: "zero pivot: the matrix is singular or not positive definite",
+    -5: "unclassified internal error", -6: "reordering failed", -7: "diagonal matrix is singular",
+    -8: "32-bit integer overflow", -9: "not enough memory for out-of-core", -10: "error opening OOC files",
+    -11: "read/write error with OOC files", -12: "pardiso_64 called from 32-bit library",
+}
+
+
+class _Pardiso:
+    """One PARDISO handle: real symmetric positive definite (mtype 2), the upper triangle in
+    zero-based CSR, METIS ordering; phase 12 factors, 33 solves, −1 frees."""
+
+    def __init__(self, matrix: sp.spmatrix):
+        self.lib = _mkl_library()
+        self.lib.pardiso.restype = None
+        upper = sp.triu(matrix, format="csr")
+        upper.sort_indices()
+        if upper.nnz >= 2**31 or matrix.shape[0] >= 2**31:
+            raise RuntimeError("PARDISO: the matrix is too large for 32-bit indices")
+        self.n = matrix.shape[0]
+        self.data = np.ascontiguousarray(upper.data, dtype=np.float64)
+        self.ia = upper.indptr.astype(np.int32)
+        self.ja = upper.indices.astype(np.int32)
+        self.pt = np.zeros(64, dtype=np.int64)  # the solver's internal handle
+        self.iparm = np.zeros(64, dtype=np.int32)
+        self.iparm[0] = 1  # our settings below, defaults elsewhere
+        self.iparm[1] = 2  # METIS nested dissection
+        # iparm(8) = 0: PARDISO refines only after perturbed pivots, which its Cholesky of an
+        # SPD matrix never uses; model.solve refines by the same rule for every backend.
+        self.iparm[7] = 0
+        self.iparm[34] = 1  # zero-based indices
+        self.alive = True  # from here on __del__ frees PARDISO's memory, also after an error
+        self._call(12, np.zeros((self.n, 1), order="F"))
+
+    def _call(self, phase: int, b: np.ndarray) -> np.ndarray:
+        x = np.zeros_like(b, order="F")
+        error = ctypes.c_int32(0)
+        i32 = ctypes.POINTER(ctypes.c_int32)
+        f64 = ctypes.POINTER(ctypes.c_double)
+        one = ctypes.c_int32(1)
+        self.lib.pardiso(
+            self.pt.ctypes.data_as(ctypes.c_void_p), ctypes.byref(one), ctypes.byref(one),
+            ctypes.byref(ctypes.c_int32(2)), ctypes.byref(ctypes.c_int32(phase)),
+            ctypes.byref(ctypes.c_int32(self.n)), self.data.ctypes.data_as(f64),
+            self.ia.ctypes.data_as(i32), self.ja.ctypes.data_as(i32), None,
+            ctypes.byref(ctypes.c_int32(b.shape[1])), self.iparm.ctypes.data_as(i32),
+            ctypes.byref(ctypes.c_int32(0)), b.ctypes.data_as(f64), x.ctypes.data_as(f64),
+            ctypes.byref(error))
+        if error.value != 0:
+            raise RuntimeError(f"PARDISO error {error.value}: {_PARDISO_ERRORS.get(error.value, 'unknown')}")
+        return x
+
+    def solve(self, b: np.ndarray) -> np.ndarray:
+        return self._call(33, np.asfortranarray(b, dtype=np.float64))  # all columns in one call
+
+    def __del__(self):
+        if getattr(self, "alive", False):
+            self.alive = False
+            try:
+                self._call(-1, np.zeros((self.n, 1), order="F"))
+            except Exception:  # noqa: BLE001 (never raise from a finalizer)
+                pass
+
+
+def _pardiso(matrix: sp.spmatrix) -> Factor:
+    handle = _Pardiso(matrix)
+    return Factor("pardiso", handle.solve, handle)
+
+
+_FACTORIZE = {"superlu": _superlu, "cholmod": _cholmod, "cvxopt": _cvxopt, "pardiso": _pardiso}
