@@ -522,6 +522,13 @@ def span_deflection_figure(spans: list[dict], case: str, axis: str, units: dict,
     return fig
 
 
+def dc_map_figure(plan, checks) -> Figure:
+    """The demand/capacity map (drawn in the main process: it takes the plan and the checks)."""
+    from .figures_checks import dc_map_figure as draw
+
+    return draw(plan, checks)
+
+
 def render(draw: str, kwargs: dict, folder: str, name: str, svg: bool = False) -> tuple[str, float, float]:
     """Draw ``draw`` (a function of this module) with ``kwargs`` once and write
     ``folder/name.png`` (and ``.svg`` if asked). Top-level and plain-data in and out, so a
@@ -557,9 +564,3 @@ if __name__ == "__main__":
 
     _worker(sys.argv[-1])
 
-
-def dc_map_figure(plan, checks) -> Figure:
-    """The demand/capacity map (drawn in the main process: it takes the plan and the checks)."""
-    from .figures_checks import dc_map_figure as draw
-
-    return draw(plan, checks)

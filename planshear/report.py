@@ -1032,6 +1032,10 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
     specs = report.figures(choice)
     if not specs:
         return {}
+    names = [s.name for s in specs]
+    if len(set(names)) != len(names):  # two figures would overwrite one file (and race in the workers)
+        twice = sorted({n for n in names if names.count(n) > 1})
+        raise AnalysisError(f"figure file names used twice: {', '.join(twice)}; this is a bug in planshear")
     folder.mkdir(parents=True, exist_ok=True)
     sizes: dict[str, tuple[float, float]] = {}
     start = time.perf_counter()
@@ -1112,7 +1116,10 @@ PARALLEL_FROM = 8
 
 
 def _slug(text: str) -> str:
-    return "".join(ch if ch.isalnum() else "_" for ch in text).strip("_")
+    """A file-name stem for ``text`` that keeps case names apart: "+" and "-" are spelled
+    out ("E+x+ecc" → "E_plus_x_plus_ecc", never the same stem as "E+x-ecc")."""
+    spelled = text.replace("+", "_plus_").replace("-", "_minus_")
+    return "_".join(part for part in "".join(ch if ch.isalnum() else "_" for ch in spelled).split("_") if part)
 
 
 # -- HTML -------------------------------------------------------------------------------

@@ -205,3 +205,15 @@ def test_figures_none_key_all(small_package, tmp_path):
     assert (out / "figures" / "plan.svg").exists() and not (tmp_path / "k" / "figures" / "plan.svg").exists()
     assert "<svg" in (out / "report.html").read_text(encoding="utf-8")  # --figures all: the plan inline as SVG
     assert not list((tmp_path / "k" / "figures").glob(".*"))  # no working files left behind
+
+
+def test_every_figure_has_its_own_file(small_package):
+    """Case names differ only in + and − (E+x+ecc, E+x-ecc): each figure of each case gets its
+    own file (a shared file stem once made one case's figure overwrite the other's)."""
+    out, doc = small_package
+    semirigid = doc["assumptions"]["semirigid"]["cases"]
+    stems = {p.stem for p in (out / "figures").glob("*.png")}
+    for kind in ("unit_shear", "deflected"):
+        found = {s for s in stems if s.startswith(kind + "_")}
+        assert len(found) == len(semirigid), (kind, sorted(found))
+    assert "unit_shear_E_plus_x_plus_ecc" in stems and "unit_shear_E_plus_x_minus_ecc" in stems
