@@ -28,6 +28,7 @@ import html
 import os
 import pickle
 import time
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -1018,7 +1019,8 @@ def sensitivity_tables(doc: dict) -> list[Table]:
 
 
 def render_figures(report: Report, doc: dict, results, folder: Path, choice: str = "key",
-                   workers: int | None = None, timings: dict | None = None) -> dict[str, tuple[float, float]]:
+                   workers: int | None = None, timings: dict | None = None,
+                   meanwhile: Callable[[], None] | None = None) -> dict[str, tuple[float, float]]:
     """Draw the figures ``choice`` keeps into ``folder`` (PNG; SVG where asked): name →
     (width, height) in inches.
 
@@ -1048,6 +1050,8 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
     started = []
     try:
         started = _start_workers(batches[1:], folder)
+        if meanwhile is not None:  # e.g. the mesh files, while the helper processes draw
+            meanwhile()
         for spec in local + batches[0]:
             kwargs = ({"doc": doc, "plan": results.plan} if spec.draw == "plan_figure" else
                       {"plan": results.plan, "checks": results.checks} if spec.draw == "dc_map_figure" else spec.kwargs)
@@ -1204,10 +1208,12 @@ table{font-size:6.5pt}td.pages{display:none}}
 
 
 def write_review_package(folder: Path, results, doc: dict, figures: str = "key", page_size: str = "letter",
-                         workers: int | None = None, timings: dict | None = None) -> list[str]:
+                         workers: int | None = None, timings: dict | None = None,
+                         meanwhile: Callable[[], None] | None = None) -> list[str]:
     """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``.
     ``figures``: one of :data:`FIGURE_CHOICES`; ``page_size``: a key of
-    :data:`PAGE_SIZES`; ``timings`` (optional dict) receives seconds per step."""
+    :data:`PAGE_SIZES`; ``timings`` (optional dict) receives seconds per step;
+    ``meanwhile`` (optional) is other writing done once, while the figure processes draw."""
     from .report_pdf import write_pdf
 
     if figures not in FIGURE_CHOICES:
@@ -1227,7 +1233,14 @@ def write_review_package(folder: Path, results, doc: dict, figures: str = "key",
     report = build_report(doc, results, figures)
     lap("content")
     figures_dir = folder / "figures"
-    sizes = render_figures(report, doc, results, figures_dir, figures, workers, timings)
+    pending = [meanwhile] if meanwhile is not None else []
+
+    def other_writing() -> None:
+        while pending:
+            pending.pop()()
+
+    sizes = render_figures(report, doc, results, figures_dir, figures, workers, timings, other_writing)
+    other_writing()  # when no figure was drawn
     clock = time.perf_counter()
     write_pdf(folder / "report.pdf", report, figures_dir, sizes, page_size)
     for raw in figures_dir.glob(".*.rgb.npy"):  # pixels the PDF did not use

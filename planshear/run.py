@@ -162,16 +162,21 @@ class Results:
             # Compact: four times faster to write than an indented file and 2.5 times smaller.
             text = json.dumps(doc, ensure_ascii=False, allow_nan=False, separators=(",", ":"))
             (staging / "results.json").write_text(text + "\n", encoding="utf-8")
-            if self.semirigid is not None:
-                write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane,
-                                 units=mesh_units)
+            def mesh_files() -> None:
+                if self.semirigid is not None:
+                    write_mesh_files(staging, self.plan, self.semirigid.solution, self.semirigid.membrane,
+                                     units=mesh_units)
+
             if report:
                 from .report import (
                     write_review_package,  # the report module imports this one's types
                 )
 
+                # The mesh files are written while the figure processes draw.
                 write_review_package(staging, self, json.loads(text), figures=figures, page_size=page_size,
-                                     timings=timings)
+                                     timings=timings, meanwhile=mesh_files)
+            else:
+                mesh_files()
             _replace_folder(staging, folder)
         except BaseException:
             shutil.rmtree(staging, ignore_errors=True)
