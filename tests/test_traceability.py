@@ -134,9 +134,8 @@ def test_worked_span_uniform_formulas():
 
 
 def _text_boxes(fig):
-    """(text, window extent) of every text drawn in the plan axes, after the layout the
-    report uses (save() calls tight_layout)."""
-    fig.tight_layout()
+    """(text, window extent) of every text drawn in the plan axes, in the figure's own fixed
+    layout (the one planshear.figures.render saves)."""
     renderer = fig.canvas.get_renderer()
     fig.draw(renderer)
     ax = fig.axes[0]
