@@ -111,18 +111,11 @@ def _case_from_analogy(
         max_displacement=max_displacement,
         equilibrium_residual=max(residual, collector_residual / case.force),
         extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {}),
-               # V(s)/ℓ(s) along each span direction (N/m, stations m) for the design checks of the zones
-               "span_unit_shear": tuple((a.axis, a.stations, _unit_shear(a)) for a in (main, transverse)
-                                        if a is not None),
-               # V(s) and ℓ(s) of the span: the unit-shear diagram V/ℓ of the report.
-               "span_shear": (main.stations, main.shear, main.length_available)},
+               # (axis, s m, V N, ℓ m) along each span direction, the main one first: the unit-shear
+               # diagram V/ℓ of the report (main) and of the zones' design checks (both).
+               "span_shear": tuple((a.axis, a.stations, a.shear, a.length_available) for a in (main, transverse)
+                                   if a is not None)},
     )
-
-
-def _unit_shear(analogy: BeamAnalogy) -> np.ndarray:
-    """V(s)/ℓ(s) (N/m) of a beam analogy; zero where no diaphragm is cut."""
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return np.where(analogy.length_available > 0, analogy.shear / analogy.length_available, 0.0)
 
 
 def flexible_analysis(plan: Plan, cases: list[LoadCase]) -> MethodResult:

@@ -100,6 +100,13 @@ class MethodResult:
     extra: dict[str, object] = field(default_factory=dict)
 
 
+def unit_shear_along(shear: np.ndarray, length: np.ndarray) -> np.ndarray:
+    """Unit shear V(s)/ℓ(s) (N/m) from the shear V (N) and the diaphragm length ℓ (m) cut at
+    each station; zero where no diaphragm is cut."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(length > 0, shear / np.where(length > 0, length, 1.0), 0.0)
+
+
 def _r(value: float, digits: int = 6) -> float:
     """Round for the JSON file: results are engineering numbers, not bit patterns."""
     if value == 0 or not np.isfinite(value):
@@ -191,12 +198,9 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             ]
         elif key == "transfer":
             out[key] = [transfer_to_json(td, units) for td in value]
-        elif key == "span_unit_shear":
-            continue  # V/ℓ along the spans, kept for the design checks (checks.csv, results.json "checks")
-        elif key == "span_shear":  # (s, V, ℓ) in m, N, m → stations, V, length present, unit shear V/ℓ
-            s, shear, length = value
-            with np.errstate(divide="ignore", invalid="ignore"):
-                unit = np.where(length > 0, shear / np.where(length > 0, length, 1.0), 0.0)
+        elif key == "span_shear":  # the main span's (s, V, ℓ) in m, N, m → stations, V, length present, V/ℓ
+            _, s, shear, length = value[0]
+            unit = unit_shear_along(shear, length)
             out[key] = {"stations": [_r(units.length_out(x)) for x in s], "V": [_r(units.force_out(x)) for x in shear],
                         "length": [_r(units.length_out(x)) for x in length],
                         "unit_shear": [_r(units.line_force_out(x)) for x in unit]}

@@ -32,7 +32,7 @@ from planshear.errors import PlanError
 from planshear.fem.model import element_polygons
 from planshear.loads import LoadCase
 from planshear.plan import Plan
-from planshear.results import MethodResult
+from planshear.results import MethodResult, unit_shear_along
 
 from .envelope import Envelope, Governing, member_envelopes
 from .sections import _locate
@@ -107,7 +107,8 @@ def _idealized_zone_shear(result, region) -> tuple[float, float]:
     diagram is also read at the region's own ends (interpolated just inside them: the
     stations of the analogy need not fall on a zone boundary)."""
     best, at = 0.0, float("nan")
-    for axis, stations, v in result.extra.get("span_unit_shear", ()):
+    for axis, stations, shear, length in result.extra.get("span_shear", ()):
+        v = unit_shear_along(shear, length)
         s_index = 1 if axis == "x" else 0
         # Just inside an end: past the ±1e-7·size stations that show a jump at a support.
         inset = 2e-7 * float(np.ptp(stations))
