@@ -330,6 +330,17 @@ def side_intervals(plan: Plan, grid_line: GridLine, s_index: int, offset: float)
     return sorted(out)
 
 
+def line_sides(plan: Plan, grid_line: GridLine, s_index: int, size: float
+               ) -> tuple[list[tuple[float, float]], list[tuple[float, float]], list[tuple[float, float]]]:
+    """Intervals (t0, t1, m) of a grid line with diaphragm just beside it on the side of
+    smaller s, on the side of larger s, and the line's pieces (both sides and the line
+    itself, merged); ``size`` is the plan's extent (m)."""
+    eps = 1e-7 * size  # offset that reads the diaphragm on each side of the line
+    left = side_intervals(plan, grid_line, s_index, -eps)
+    right = side_intervals(plan, grid_line, s_index, eps)
+    return left, right, _merge(left + right + side_intervals(plan, grid_line, s_index, 0.0), 10 * eps)
+
+
 def _merge(intervals: list[tuple[float, float]], gap: float) -> list[tuple[float, float]]:
     """Union of intervals, joining those closer than ``gap``."""
     merged: list[list[float]] = []
@@ -366,18 +377,15 @@ def _line_diagram(
     e_t = np.eye(2)[t_index]
     s_line = float(grid_line.origin[s_index])
     tol = 1e-9 * size
-    eps = 1e-7 * size  # offset that reads the diaphragm on each side of the line
+    eps = 1e-7 * size  # the offset line_sides reads each side at; pieces are matched within 10 eps
     # Shear just before/after the line, without the forces that act on the line itself.
     before, _ = along.cumulative(np.array([s_line]), inclusive=False)
     after, _ = along.cumulative(np.array([s_line]), inclusive=True)
     v_before, v_after = -before[0], -after[0]
 
-    left = side_intervals(plan, grid_line, s_index, -eps)
-    right = side_intervals(plan, grid_line, s_index, eps)
-    on_line = side_intervals(plan, grid_line, s_index, 0.0)
+    left, right, pieces_t = line_sides(plan, grid_line, s_index, size)
     length_left = float(sum(b - a for a, b in left))
     length_right = float(sum(b - a for a, b in right))
-    pieces_t = _merge(left + right + on_line, 10 * eps)
     available = float(sum(b - a for a, b in pieces_t))
 
     # Distributed forces along t on the line (N per segment), and concentrated ones.

@@ -34,7 +34,7 @@ from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
 from planshear.loads import LoadCase
 from planshear.results import MethodResult
 
-from .beam_analogy import _merge, running_axial_force, side_intervals
+from .beam_analogy import line_sides, running_axial_force
 from .classify import Classification
 from .transfer import transfer_peaks
 
@@ -415,10 +415,7 @@ def member_layout(plan) -> MemberLayout:
     line_pieces = {}
     for g in plan.grid_lines:
         if g.name in line_walls and g.parallel_to is not None:
-            s_index = 1 if g.parallel_to == "x" else 0
-            eps = 1e-7 * size
-            found = side_intervals(plan, g, s_index, -eps) + side_intervals(plan, g, s_index, eps)
-            line_pieces[g.name] = tuple(_merge(found + side_intervals(plan, g, s_index, 0.0), 10 * eps))
+            line_pieces[g.name] = tuple(line_sides(plan, g, 1 if g.parallel_to == "x" else 0, size)[2])
     return MemberLayout(tuple(members), line_axis, chord_line, chord_axis,
                         {k: tuple(v) for k, v in line_walls.items()}, line_pieces)
 
