@@ -200,8 +200,8 @@ def spread_across_depth(plan: Plan, start: np.ndarray, end: np.ndarray, force: f
         if b - a <= 1e-9 * size:
             continue
         band = _band(s_index, a, b, lo, hi)
-        parts = [g for g in getattr(plan.region.intersection(band), "geoms", [plan.region.intersection(band)])
-                 if isinstance(g, Polygon) and g.area > 0]
+        cut = plan.region.intersection(band)
+        parts = [g for g in getattr(cut, "geoms", [cut]) if isinstance(g, Polygon) and g.area > 0]
         if not parts:
             continue
         here = segment.intersection(band)

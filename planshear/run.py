@@ -246,9 +246,7 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
                      "irregularity; all ±ecc cases of the rigid and semi-rigid assumptions)"
                      for (load, axis), ax in sorted(amplification.items()))
     checks = design_checks(plan, methods, cases, envelope, run)
-    # [[splice]] entries (name, point in m), where the plan reader provides them.
-    splices = tuple(splice_forces(plan, methods, cases, envelope,
-                                  [(s.name, s.at) for s in getattr(plan, "splices", ())]))
+    splices = tuple(splice_forces(plan, methods, cases, envelope, [(s.name, s.at) for s in plan.splices]))
     return Results(plan, tuple(cases), methods, unavailable, run, classification, sensitivity, envelope, equilibrium,
                    engineer_envelope=engineer, drift=drift, irregularities=irregularities, applied_consequences=applied,
                    checks=checks, splice_forces=splices)

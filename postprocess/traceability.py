@@ -137,9 +137,9 @@ def weight_breakdown(plan: Plan, load) -> WeightBreakdown:
     for x, y, p, _ in points:
         items.append(WeightItem("point", f"point at ({x / plan.length_scale:g}, {y / plan.length_scale:g})",
                                 None, (), None, None, p))
-    fpx = fpx_12_10_1_1(seismic_weight(plan, load).total, *load.fpx) if load.fpx is not None else None
-    return WeightBreakdown(load.name, tuple(items), float(sum(i.weight for i in items)),
-                           seismic_weight(plan, load).total, fpx, load.fpx)
+    used = seismic_weight(plan, load).total
+    fpx = fpx_12_10_1_1(used, *load.fpx) if load.fpx is not None else None
+    return WeightBreakdown(load.name, tuple(items), float(sum(i.weight for i in items)), used, fpx, load.fpx)
 
 
 def _cut(geometry, s: float, s_index: int) -> float:
