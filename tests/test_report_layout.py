@@ -217,3 +217,30 @@ def test_every_figure_has_its_own_file(small_package):
         found = {s for s in stems if s.startswith(kind + "_")}
         assert len(found) == len(semirigid), (kind, sorted(found))
     assert "unit_shear_E_plus_x_plus_ecc" in stems and "unit_shear_E_plus_x_minus_ecc" in stems
+
+
+def test_figures_from_pre_started_workers_equal_those_drawn_here(small_package, tmp_path):
+    """Figure processes started before the analysis (FigureWorkers) draw the same pixels as
+    this process; a worker given no batch exits on its own; no working file is left."""
+    from planshear.report import FigureWorkers, render_figures
+
+    out, doc = small_package
+    plan_file = next(out.parent.glob("*.toml"))
+    from planshear.plan import load_plan
+
+    results = analyze(load_plan(plan_file))
+    report = build_report(doc, results, "all")
+    with FigureWorkers(2) as workers:
+        assert workers.count == 2
+        here = render_figures(report, doc, results, tmp_path / "here", "all", workers=1)
+        there = render_figures(report, doc, results, tmp_path / "there", "all", started_workers=workers)
+        assert workers.count == 0  # both were handed a batch
+    assert here == there
+    for name in here:
+        a = (tmp_path / "here" / f"{name}.png").read_bytes()
+        b = (tmp_path / "there" / f"{name}.png").read_bytes()
+        assert a == b, name
+    assert not [p for p in (tmp_path / "there").iterdir() if p.name.startswith(".batch")]
+    with FigureWorkers(1) as idle:  # never handed a batch: let go on leaving
+        process = idle.processes[0]
+    assert process.returncode == 0
