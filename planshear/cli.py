@@ -376,7 +376,7 @@ def _print_results(results: Results, out: Path) -> None:
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
-            label = slots.get("member", name)
+            label = slots.get("part") or slots.get("member", name)
             print(f"  {label.ljust(14)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     _print_walls_along_chords(doc)
     drift = doc.get("drift")

@@ -274,8 +274,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
          if slots.get("design")],
     )
     tables["chords"] = (
-        ["member (outline edge)", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
-        [[f"{s['member']} ({n})" if "member" in s else n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
+        ["chord (of member)", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
+        [[_chord_label(n, s), s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["information"] and s["information"]["value"]] for n, s in envelope["chords"].items()],
     )
     rows, line_rows = [], []
@@ -804,8 +804,7 @@ def _member_specs(doc: dict, group: str) -> list[FigureSpec]:
             note = f"With Ω0 (ASCE 7-16 §12.10.2.1): {_fmt(w['value'])} {f}, {_named(w['assumption'])} {w['case']}."
         where = f"along line {name}" if group == "collectors" else f"along {name} from its first corner"
         role = "Collector" if group == "collectors" else "Chord"
-        named = slots.get("member") or name
-        named = named if named == name or group == "collectors" else f"{named} (outline {name})"
+        named = (slots.get("member") or name) if group == "collectors" else _chord_label(name, slots)
         specs.append(FigureSpec(
             f"{role.lower()}_{k:02d}_{_slug(name)}", f"{role} force, {named}", "member_diagram_figure",
             {"title": f"{role} force, {named}", "xlabel": f"position {where} ({p})",
@@ -1195,6 +1194,16 @@ class FigureWorkers:
             except Exception:  # noqa: BLE001 - a stuck worker must not keep the program alive
                 process.kill()
                 process.wait()
+
+
+def _chord_label(key: str, slots: dict) -> str:
+    """A chord as a reviewer names it: its part ("line B, 3–4"), and the member it belongs to
+    where that is longer ("line B, 3–4 (of line B, 1–4)"); the outline edge's key only
+    where neither is known (a transfer region's chord keeps its own name)."""
+    part, member = slots.get("part"), slots.get("member")
+    if part is None:
+        return member or key
+    return part if member in (None, part) else f"{part} (of {member})"
 
 
 def _slug(text: str) -> str:

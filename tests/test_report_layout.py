@@ -16,7 +16,7 @@ import pytest
 from planshear.caution import CAUTION
 from planshear.cli import main
 from planshear.errors import PlanError
-from planshear.report import build_report, fe_unit_shear_along_span
+from planshear.report import _chord_label, build_report, fe_unit_shear_along_span
 from planshear.report_pdf import latin, table_lines
 from planshear.run import analyze, plan_summary
 
@@ -131,15 +131,16 @@ def test_member_diagrams_mark_the_envelope_design_values(small_package):
     report = build_report(doc, None, "key")
     specs = {s.name: s for s in report.figures("key") if s.draw == "member_diagram_figure"}
     assert specs
-    envelope = {**doc["envelope"]["collectors"], **doc["envelope"]["chords"]}
     checked = 0
     for spec in specs.values():
-        name = spec.title.split(", ", 1)[1]
-        # Chords are titled by their member with the outline edge in brackets: "line A, 1–2 (outline edge 1)".
-        name = name.rsplit(" (outline ", 1)[1][:-1] if " (outline " in name else name
-        # Collectors are titled by their member ("line A, 1–2"), the envelope keys them by grid line.
-        by_member = {s.get("member"): key for key, s in doc["envelope"]["collectors"].items() if s.get("member")}
-        slots = envelope[by_member.get(name, name)]
+        role, name = spec.title.split(", ", 1)
+        # Collectors are titled by their member ("line A, 1–2"), the envelope keys them by grid line;
+        # chords by their part ("line A, 1–2", with "(of <member>)" where the member is longer).
+        group = "collectors" if role.startswith("Collector") else "chords"
+        by_member = ({s.get("member"): key for key, s in doc["envelope"]["collectors"].items() if s.get("member")}
+                     if group == "collectors" else
+                     {_chord_label(key, s): key for key, s in doc["envelope"]["chords"].items()})
+        slots = doc["envelope"][group][by_member.get(name, name)]
         assert any(series["governs"] for series in spec.kwargs["series"])
         for mark in spec.kwargs["marks"]:
             kind = "tension" if "design T" in mark["text"] else "compression"
