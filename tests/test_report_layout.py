@@ -17,7 +17,7 @@ from planshear.caution import CAUTION
 from planshear.cli import main
 from planshear.errors import PlanError
 from planshear.report import build_report, fe_unit_shear_along_span
-from planshear.report_pdf import latin, table_lines
+from planshear.report.pdf import latin, table_lines
 from planshear.run import analyze, plan_summary
 
 from conftest import FT, KIP, end_walls, rectangle_plan
