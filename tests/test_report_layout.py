@@ -16,8 +16,9 @@ import pytest
 from planshear.caution import CAUTION
 from planshear.cli import main
 from planshear.errors import PlanError
-from planshear.report import _chord_label, build_report, fe_unit_shear_along_span
-from planshear.report_pdf import latin, table_lines
+from planshear.report import build_report, fe_unit_shear_along_span
+from planshear.report.pdf import latin, table_lines
+from planshear.report.tables import chord_label
 from planshear.run import analyze, plan_summary
 
 from conftest import FT, KIP, end_walls, rectangle_plan
@@ -139,7 +140,7 @@ def test_member_diagrams_mark_the_envelope_design_values(small_package):
         group = "collectors" if role.startswith("Collector") else "chords"
         by_member = ({s.get("member"): key for key, s in doc["envelope"]["collectors"].items() if s.get("member")}
                      if group == "collectors" else
-                     {_chord_label(key, s): key for key, s in doc["envelope"]["chords"].items()})
+                     {chord_label(key, s): key for key, s in doc["envelope"]["chords"].items()})
         slots = doc["envelope"][group][by_member.get(name, name)]
         assert any(series["governs"] for series in spec.kwargs["series"])
         for mark in spec.kwargs["marks"]:

@@ -135,7 +135,7 @@ def test_worked_span_uniform_formulas():
 
 def _text_boxes(fig):
     """(text, window extent) of every text drawn in the plan axes, in the figure's own fixed
-    layout (the one planshear.figures.render saves)."""
+    layout (the one planshear.report.figures.render saves)."""
     renderer = fig.canvas.get_renderer()
     fig.draw(renderer)
     ax = fig.axes[0]
@@ -151,7 +151,7 @@ def test_demo_plan_figure_shows_loads_dimensions_and_no_label_collides():
     """The demo plan drawing carries the loads with their values, CM and CR, dimension
     strings (grid spacing 50, 50, 60 ft; overall 160 × 90 ft from the demo outline) and a
     scale bar; no two labels overlap (renderer extents)."""
-    from planshear.figures import plan_figure
+    from planshear.report.figures import plan_figure
 
     text = resources.files("planshear").joinpath("data/demo.toml").read_text(encoding="utf-8")
     plan = parse_plan(text, "demo.toml")
@@ -168,7 +168,7 @@ def test_demo_plan_figure_shows_loads_dimensions_and_no_label_collides():
 def test_plan_figure_separates_coinciding_labels():
     """A symmetric rectangle: the center of mass and of rigidity coincide (both at the
     middle by symmetry), yet their labels do not overlap."""
-    from planshear.figures import plan_figure
+    from planshear.report.figures import plan_figure
 
     plan = parse_plan(rectangle_plan(walls=end_walls()), "symmetric.toml")
     doc = analyze(plan, semirigid=False).to_json()

@@ -65,7 +65,7 @@ def latin(text: str) -> str:
             out.append(SPELLED_OUT.get(ch) or (unicodedata.normalize("NFKD", ch).encode("ascii", "ignore").decode()
                                                or "?"))
     return "".join(out)
-ACCENT = "#1f6f8b"  # the semi-rigid blue-green of planshear.figures
+ACCENT = "#1f6f8b"  # the semi-rigid blue-green of planshear.report.figures
 
 
 @dataclass
@@ -79,7 +79,7 @@ class _Page:
 
 
 def _plain(value) -> str:
-    from .report import _plain as plain
+    from .tables import _plain as plain
 
     return plain(value)
 
@@ -209,7 +209,7 @@ def _table_setting(layout: _Layout, table) -> tuple[bool, float, list[str], int]
 
 
 def _want(block, settings: dict) -> str:
-    from .report import FigureSpec, Table
+    from .content import FigureSpec, Table
 
     if isinstance(block, Table):
         return "landscape" if settings[id(block)][0] else "any"
@@ -220,7 +220,7 @@ def _want(block, settings: dict) -> str:
 
 def layout_report(report, sizes: dict, paper: tuple[float, float]) -> list[_Page]:
     """The pages of the report (before numbering)."""
-    from .report import FigureSpec, Table
+    from .content import FigureSpec, Table
 
     layout = _Layout(paper)
     settings = {id(b): _table_setting(layout, b) for s in report.sections for b in s.blocks if isinstance(b, Table)}
@@ -274,7 +274,7 @@ def _caution(layout: _Layout, caution: str) -> None:
 
 def _first_height(layout: _Layout, block, settings: dict, sizes: dict) -> float:
     """Height (in) of the start of a block that its section heading must stay with."""
-    from .report import FigureSpec, Table
+    from .content import FigureSpec, Table
 
     if isinstance(block, Table):
         _, size, lines, n_head = settings[id(block)]
@@ -391,8 +391,8 @@ def write_pdf(path: Path, report, figures_dir: Path, sizes: dict, page_size: str
     import matplotlib
     from matplotlib.backends.backend_pdf import PdfPages
 
-    from . import __version__
-    from .report import PAGE_SIZES
+    from .. import __version__
+    from .content import PAGE_SIZES
 
     pages = layout_report(report, sizes, PAGE_SIZES[page_size])
     block = report.title_block

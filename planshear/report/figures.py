@@ -161,8 +161,8 @@ def plan_figure(doc: dict, plan) -> Figure:
     point weights as squares, wind faces with arrows); the center of mass and of rigidity;
     dimension strings (grid spacing and overall) and a scale bar. Labels are placed where
     they overlap no other label (renderer extents), with leader lines where moved far."""
-    from .loads import windward_segments  # figures are drawn after the analysis
-    from .units import OutputUnits
+    from ..loads import windward_segments  # figures are drawn after the analysis
+    from ..units import OutputUnits
 
     units = OutputUnits.for_plan(plan.length_unit)
     unit = plan.length_unit
@@ -309,7 +309,7 @@ def plan_figure(doc: dict, plan) -> Figure:
 def _load_parts(plan, load):
     """Area weights (geometry m, N/m²), line weights (start, end m, N/m) and point weights
     (x, y m, N) of a seismic load, as planshear.loads takes them."""
-    from .loads import _weight_parts
+    from ..loads import _weight_parts
 
     areas, lines, points = _weight_parts(plan, load)
     return areas, lines, [(x, y, p) for x, y, p, _ in points]
@@ -537,7 +537,7 @@ def render(draw: str, kwargs: dict, folder: str, name: str, svg: bool = False) -
     folder_ = Path(folder)
     folder_.mkdir(parents=True, exist_ok=True)
     fig.savefig(folder_ / f"{name}.png", dpi=DPI, facecolor=fig.get_facecolor())
-    # The same pixels, raw, for the PDF pages (read and removed by planshear.report_pdf).
+    # The same pixels, raw, for the PDF pages (read and removed by planshear.report.pdf).
     np.save(folder_ / f".{name}.rgb.npy", np.ascontiguousarray(np.asarray(fig.canvas.buffer_rgba())[..., :3]))
     if svg:  # no date in the metadata, so that a rerun writes the same file
         fig.savefig(folder_ / f"{name}.svg", facecolor=fig.get_facecolor(), metadata={"Date": None})
@@ -546,7 +546,7 @@ def render(draw: str, kwargs: dict, folder: str, name: str, svg: bool = False) -
 
 
 def _worker(batch: str) -> None:
-    """``python -m planshear.figures <batch>``: render the pickled jobs of ``batch`` and
+    """``python -m planshear.report.figures <batch>``: render the pickled jobs of ``batch`` and
     write {name: (width, height)} next to it (``.out``)."""
     import pickle
 
