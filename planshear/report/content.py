@@ -428,7 +428,7 @@ def _member_specs(doc: dict, group: str) -> list[FigureSpec]:
         role = "Collector" if group == "collectors" else "Chord"
         named = (slots.get("member") or name) if group == "collectors" else chord_label(name, slots)
         specs.append(FigureSpec(
-            f"{role.lower()}_{k:02d}_{_slug(name)}", f"{role} force, {named}", "member_diagram_figure",
+            f"{role.lower()}_{k:02d}_{_slug(named)}", f"{role} force, {named}", "member_diagram_figure",
             {"title": f"{role} force, {named}", "xlabel": f"position {where} ({p})",
              "ylabel": f"N ({f}), tension +", "series": series, "marks": marks, "note": note}))
     return specs
