@@ -8,6 +8,7 @@ prints or exits; the library raises exceptions.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
 import sys
 import time
@@ -109,6 +110,15 @@ def _report_options(command) -> None:
                          help="paper of report.pdf and of the printed HTML (default: letter)")
 
 
+def _figure_workers(args):
+    """Figure processes for the report, started now (one per idle core), or nothing."""
+    if args.no_report or args.figures == "none":
+        return contextlib.nullcontext()
+    from .report import FigureWorkers
+
+    return FigureWorkers()
+
+
 def main(argv: list[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
@@ -140,10 +150,11 @@ def main(argv: list[str] | None = None) -> int:
             plan = load_plan(args.plan)
             out = Path(args.out) if args.out else Path(f"{Path(args.plan).stem}-results")
         progress = _progress_printer(quiet=args.quiet or args.format == "json")
-        results = analyze(plan, progress=progress)
-        progress("writing results, report, figures and mesh files")
-        results.write(out, report=not args.no_report, mesh_units=args.mesh_units, figures=args.figures,
-                      page_size=args.page_size)
+        with _figure_workers(args) as workers:  # they start up while the analysis runs
+            results = analyze(plan, progress=progress)
+            progress("writing results, report, figures and mesh files")
+            results.write(out, report=not args.no_report, mesh_units=args.mesh_units, figures=args.figures,
+                          page_size=args.page_size, figure_workers=workers)
         progress("done")
         if args.format == "json":
             print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))
@@ -365,7 +376,7 @@ def _print_results(results: Results, out: Path) -> None:
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
-            label = slots.get("member", name)
+            label = slots.get("part") or slots.get("member", name)
             print(f"  {label.ljust(14)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
     _print_walls_along_chords(doc)
     drift = doc.get("drift")

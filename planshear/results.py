@@ -390,10 +390,13 @@ def envelope_to_json(envelope, units: OutputUnits) -> dict | None:
         lines.setdefault(name, {})["caution"] = text
     members = members_to_json(envelope, units)
     chords = table(envelope.chords)
+    parts = envelope.layout.chord_part if envelope.layout is not None else {}
     for name, item in members.items():
         for key in item["chord"]["sources"]:
             if key in chords:
                 chords[key]["member"] = name
+                if key in parts:
+                    chords[key]["part"] = parts[key]
         if item["collector"]["source"] in collectors:
             collectors[item["collector"]["source"]]["member"] = name
     return {

@@ -143,13 +143,14 @@ class Results:
         }
 
     def write(self, folder: str | Path, report: bool = True, mesh_units: str = "si", figures: str = "key",
-              page_size: str = "letter", timings: dict | None = None) -> Path:
+              page_size: str = "letter", timings: dict | None = None, figure_workers=None) -> Path:
         """Write the output folder completely or not at all: everything goes into a
         temporary folder next to ``folder`` that replaces it only once complete.
         ``report=False`` leaves out the report, tables and figures; ``mesh_units`` ("si" or
         "plan") are the units of the mesh files (see planshear.mesh_export); ``figures``
         (none, key, all) and ``page_size`` (letter, a4) shape the report; ``timings``
-        receives seconds per writing step."""
+        receives seconds per writing step; ``figure_workers`` (optional) are figure
+        processes started before the analysis (planshear.report.FigureWorkers)."""
         folder = Path(folder)
         parent = folder.resolve().parent
         parent.mkdir(parents=True, exist_ok=True)
@@ -174,7 +175,7 @@ class Results:
 
                 # The mesh files are written while the figure processes draw.
                 write_review_package(staging, self, json.loads(text), figures=figures, page_size=page_size,
-                                     timings=timings, meanwhile=mesh_files)
+                                     timings=timings, meanwhile=mesh_files, started_workers=figure_workers)
             else:
                 mesh_files()
             _replace_folder(staging, folder)

@@ -338,10 +338,10 @@ def line_sides(plan: Plan, grid_line: GridLine, s_index: int, size: float
     eps = 1e-7 * size  # offset that reads the diaphragm on each side of the line
     left = side_intervals(plan, grid_line, s_index, -eps)
     right = side_intervals(plan, grid_line, s_index, eps)
-    return left, right, _merge(left + right + side_intervals(plan, grid_line, s_index, 0.0), 10 * eps)
+    return left, right, merge_intervals(left + right + side_intervals(plan, grid_line, s_index, 0.0), 10 * eps)
 
 
-def _merge(intervals: list[tuple[float, float]], gap: float) -> list[tuple[float, float]]:
+def merge_intervals(intervals: list[tuple[float, float]], gap: float) -> list[tuple[float, float]]:
     """Union of intervals, joining those closer than ``gap``."""
     merged: list[list[float]] = []
     for t0, t1 in sorted(intervals):

@@ -34,7 +34,7 @@ from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
 from planshear.loads import LoadCase
 from planshear.results import MethodResult
 
-from .beam_analogy import line_sides, running_axial_force
+from .beam_analogy import line_sides, merge_intervals, running_axial_force
 from .classify import Classification
 from .transfer import transfer_peaks
 
@@ -319,6 +319,8 @@ class MemberLayout:
     line_walls: dict[str, tuple[tuple[str, float, float, float], ...]] = field(default_factory=dict)
     # grid line → pieces (t0, t1 m) of the line with diaphragm on or beside it
     line_pieces: dict[str, tuple[tuple[float, float], ...]] = field(default_factory=dict)
+    # chord key → the chord part as a reviewer names it ("line B, 3–4"; off the grid: its member's name)
+    chord_part: dict[str, str] = field(default_factory=dict)
 
 
 def _cross(a: np.ndarray, b: np.ndarray) -> float:
@@ -351,9 +353,12 @@ def member_layout(plan) -> MemberLayout:
     """Name every chord and collector by grid line and bay, one member per physical line.
 
     Rule: a member on a grid line is "line L, a–b", where a and b are the grid lines that cross
-    L at the ends of its extent over the diaphragm; one member per grid line carries the line's
-    collector role and the chord role of every outline edge (or declared chord) on it, with the
-    bays of the chord part ("chord 3–4"). An outline edge on no grid line is "edge at y = 12 ft,
+    L at the ends of its extent over the diaphragm; where the diaphragm leaves the line and
+    comes back (a notch, an opening with no declared member across it) the pieces are listed,
+    "line L, 1–2 and 3–4". One member per grid line carries the line's collector role (its
+    design value is the largest over all its pieces) and the chord role of every outline edge
+    (or declared chord) on it, with the bays of the chord part ("chord 3–4"); each chord part
+    is also named on its own ("line L, 3–4", :attr:`MemberLayout.chord_part`). An outline edge on no grid line is "edge at y = 12 ft,
     a–b" (its coordinate, then the crossing grid lines at its ends); an end where no grid line
     crosses is written as its coordinate ("x = 62 ft"); a skewed edge off the grid is named by
     its end coordinates. The outline is counter-clockwise, edge i from corner i to i + 1.
@@ -387,16 +392,20 @@ def member_layout(plan) -> MemberLayout:
             chord_line[key], chord_axis[key] = member.line, line_axis.get(member.line)
             on_line.setdefault(member.line, []).append((key, member.t_from, member.t_to))
     members = []
+    chord_part: dict[str, str] = {}
     for g in plan.grid_lines:
         chords = on_line.get(g.name, [])
-        t_lo = min([g.t_min] + [min(t0, t1) for _, t0, t1 in chords])
-        t_hi = max([g.t_max] + [max(t0, t1) for _, t0, t1 in chords])
+        pieces = _member_pieces(plan, g, chords, size, tol)
+        t_lo, t_hi = pieces[0][0], pieces[-1][1]
         chord_bays = None
         if chords:
             chord_bays = _bays(plan, g.origin, g.direction, min(min(t0, t1) for _, t0, t1 in chords),
                                max(max(t0, t1) for _, t0, t1 in chords), g.name, tol)
+            for key, t0, t1 in chords:
+                chord_part[key] = f"line {g.name}, {_bays(plan, g.origin, g.direction, t0, t1, g.name, tol)}"
+        bays = " and ".join(_bays(plan, g.origin, g.direction, a, b, g.name, tol) for a, b in pieces)
         members.append(MemberName(
-            f"line {g.name}, {_bays(plan, g.origin, g.direction, t_lo, t_hi, g.name, tol)}", g.name,
+            f"line {g.name}, {bays}", g.name,
             tuple(g.point(t_lo)), tuple(g.point(t_hi)), g.name, tuple(k for k, _, _ in chords), chord_bays))
     for key, a, b, d, axis in off_grid:
         unit, scale = plan.length_unit, plan.length_scale
@@ -407,6 +416,7 @@ def member_layout(plan) -> MemberLayout:
             name = (f"edge at {'xy'[across]} = {a[across] / scale:.4g} {unit}, "
                     f"{_bays(plan, a, d, 0.0, float(np.hypot(*(b - a))), None, tol)}")
         members.append(MemberName(name, None, tuple(a), tuple(b), None, (key,), None))
+        chord_part[key] = name
     line_walls: dict[str, list] = {}
     for wall in plan.walls:
         g = plan.line(wall.line)
@@ -417,7 +427,21 @@ def member_layout(plan) -> MemberLayout:
         if g.name in line_walls and g.parallel_to is not None:
             line_pieces[g.name] = tuple(line_sides(plan, g, 1 if g.parallel_to == "x" else 0, size)[2])
     return MemberLayout(tuple(members), line_axis, chord_line, chord_axis,
-                        {k: tuple(v) for k, v in line_walls.items()}, line_pieces)
+                        {k: tuple(v) for k, v in line_walls.items()}, line_pieces, chord_part)
+
+
+def _member_pieces(plan, g, chords: list[tuple[str, float, float]], size: float, tol: float
+                   ) -> list[tuple[float, float]]:
+    """The pieces (t0, t1 m, in order) of grid line ``g`` that a member on it occupies: where
+    the diaphragm is on or beside the line, its chords and any declared member on it, joined
+    where they touch. A skewed line (or one the outline only touches at a point) keeps its
+    whole extent over the diaphragm."""
+    spans = [(min(t0, t1), max(t0, t1)) for _, t0, t1 in chords]
+    spans += [(min(m.t_from, m.t_to), max(m.t_from, m.t_to)) for m in plan.members if m.line == g.name]
+    if g.parallel_to is not None:
+        spans += list(line_sides(plan, g, 1 if g.parallel_to == "x" else 0, size)[2])
+    pieces = merge_intervals(spans, tol)
+    return pieces or [(g.t_min, g.t_max)]
 
 
 def torsional_collector(layout: MemberLayout, line: str, wall_forces: dict[str, float],

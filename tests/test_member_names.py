@@ -25,13 +25,14 @@ def _names(plan):
 def test_demo_members_by_grid_line_and_bay():
     """Demo L-shape (outline 0–160 × 0–50 plus 0–100 × 50–90): every outline edge lies on a
     grid line and joins that line's member; the edge on line B (x 100–160) is the chord part
-    "3–4" of member "line B, 1–4"; line 3's edge (y 50–90) is its chord part "B–C"."""
+    "3–4" of member "line B, 1–4"; line 3's edge (y 50–90) is its chord part "B–C". Line 2
+    crosses the skylight (y 62–74) and no member spans it: its member is named in two pieces."""
     names = _names(load_plan(DEMO))
-    assert set(names) == {"line 1, A–C", "line 2, A–C", "line 3, A–C", "line 4, A–B", "line A, 1–4",
-                          "line B, 1–4", "line C, 1–3"}
+    assert set(names) == {"line 1, A–C", "line 2, A–y = 62 ft and y = 74 ft–C", "line 3, A–C", "line 4, A–B",
+                          "line A, 1–4", "line B, 1–4", "line C, 1–3"}
     assert names["line B, 1–4"].chords == ("edge 3",) and names["line B, 1–4"].chord_bays == "3–4"
     assert names["line 3, A–C"].chords == ("edge 4",) and names["line 3, A–C"].chord_bays == "B–C"
-    assert names["line A, 1–4"].collector == "A" and names["line 2, A–C"].chords == ()
+    assert names["line A, 1–4"].collector == "A" and names["line 2, A–y = 62 ft and y = 74 ft–C"].chords == ()
     assert not any("edge" in n for n in names)  # never an outline index in a name
 
 
@@ -49,6 +50,60 @@ def test_edge_off_the_grid_and_end_off_a_grid_line(plan_from):
     assert "edge at y = 30 ft, x = 70 ft–2" in names
     assert "edge at x = 70 ft, A–y = 30 ft" in names
     assert "line A, 1–x = 70 ft" in names and "line 2, y = 30 ft–B" in names
+
+
+U_PLAN = """
+[plan]
+name = "U-shaped court"
+length_unit = "ft"
+[diaphragm]
+outline = [[0, 0], [120, 0], [120, 60], [80, 60], [80, 30], [40, 30], [40, 60], [0, 60]]
+material = { kind = "wood-panel", Ga = "15 kip/in" }
+[grid]
+x = { "1" = 0, "2" = 40, "3" = 80, "4" = 120 }
+y = { "A" = 0, "B" = 30, "C" = 60 }
+[[wall]]
+id = "W1"
+line = "1"
+from = 5
+to = 55
+stiffness = "50 kip/in"
+[[wall]]
+id = "W2"
+line = "4"
+from = 5
+to = 55
+stiffness = "50 kip/in"
+[[wall]]
+id = "W3"
+line = "A"
+from = 10
+to = 110
+stiffness = "50 kip/in"
+[[load]]
+name = "E"
+kind = "seismic"
+area_weight = "20 psf"
+total = "30 kip"
+directions = ["x", "y"]
+"""
+
+
+def test_member_in_pieces_and_chord_parts_named_by_their_own_bays(plan_from):
+    """U-shaped plan (our own): line C (y = 60 ft) has diaphragm only at x 0–40 and 80–120, so its
+    member is "line C, 1–2 and 3–4" (never "1–4": there is nothing on line C between 2 and 3);
+    each chord part is named by its own bays: the two top edges "line C, 1–2" / "line C, 3–4",
+    the notch sides "line 2, B–C" / "line 3, B–C" and the notch bottom "line B, 2–3" (chord part of
+    member "line B, 1–4", which runs on through the diaphragm as a collector line)."""
+    layout = member_layout(plan_from(U_PLAN))
+    names = {m.name for m in layout.members}
+    assert names == {"line 1, A–C", "line 2, A–C", "line 3, A–C", "line 4, A–C", "line A, 1–4", "line B, 1–4",
+                     "line C, 1–2 and 3–4"}
+    parts = sorted(layout.chord_part.values())
+    assert parts == sorted(["line A, 1–4", "line 4, A–C", "line C, 3–4", "line 3, B–C", "line B, 2–3",
+                            "line 2, B–C", "line C, 1–2", "line 1, A–C"])
+    line_c = next(m for m in layout.members if m.line == "C")
+    assert len(line_c.chords) == 2 and line_c.chord_bays == "1–4"
 
 
 def test_semirigid_roles_split_by_load_direction(plan_from):

@@ -18,6 +18,7 @@ from planshear.cli import main
 from planshear.errors import PlanError
 from planshear.report import build_report, fe_unit_shear_along_span
 from planshear.report.pdf import latin, table_lines
+from planshear.report.tables import chord_label
 from planshear.run import analyze, plan_summary
 
 from conftest import FT, KIP, end_walls, rectangle_plan
@@ -131,15 +132,16 @@ def test_member_diagrams_mark_the_envelope_design_values(small_package):
     report = build_report(doc, None, "key")
     specs = {s.name: s for s in report.figures("key") if s.draw == "member_diagram_figure"}
     assert specs
-    envelope = {**doc["envelope"]["collectors"], **doc["envelope"]["chords"]}
     checked = 0
     for spec in specs.values():
-        name = spec.title.split(", ", 1)[1]
-        # Chords are titled by their member with the outline edge in brackets: "line A, 1–2 (outline edge 1)".
-        name = name.rsplit(" (outline ", 1)[1][:-1] if " (outline " in name else name
-        # Collectors are titled by their member ("line A, 1–2"), the envelope keys them by grid line.
-        by_member = {s.get("member"): key for key, s in doc["envelope"]["collectors"].items() if s.get("member")}
-        slots = envelope[by_member.get(name, name)]
+        role, name = spec.title.split(", ", 1)
+        # Collectors are titled by their member ("line A, 1–2"), the envelope keys them by grid line;
+        # chords by their part ("line A, 1–2", with "(of <member>)" where the member is longer).
+        group = "collectors" if role.startswith("Collector") else "chords"
+        by_member = ({s.get("member"): key for key, s in doc["envelope"]["collectors"].items() if s.get("member")}
+                     if group == "collectors" else
+                     {chord_label(key, s): key for key, s in doc["envelope"]["chords"].items()})
+        slots = doc["envelope"][group][by_member.get(name, name)]
         assert any(series["governs"] for series in spec.kwargs["series"])
         for mark in spec.kwargs["marks"]:
             kind = "tension" if "design T" in mark["text"] else "compression"
@@ -217,3 +219,30 @@ def test_every_figure_has_its_own_file(small_package):
         found = {s for s in stems if s.startswith(kind + "_")}
         assert len(found) == len(semirigid), (kind, sorted(found))
     assert "unit_shear_E_plus_x_plus_ecc" in stems and "unit_shear_E_plus_x_minus_ecc" in stems
+
+
+def test_figures_from_pre_started_workers_equal_those_drawn_here(small_package, tmp_path):
+    """Figure processes started before the analysis (FigureWorkers) draw the same pixels as
+    this process; a worker given no batch exits on its own; no working file is left."""
+    from planshear.report import FigureWorkers, render_figures
+
+    out, doc = small_package
+    plan_file = next(out.parent.glob("*.toml"))
+    from planshear.plan import load_plan
+
+    results = analyze(load_plan(plan_file))
+    report = build_report(doc, results, "all")
+    with FigureWorkers(2) as workers:
+        assert workers.count == 2
+        here = render_figures(report, doc, results, tmp_path / "here", "all", workers=1)
+        there = render_figures(report, doc, results, tmp_path / "there", "all", started_workers=workers)
+        assert workers.count == 0  # both were handed a batch
+    assert here == there
+    for name in here:
+        a = (tmp_path / "here" / f"{name}.png").read_bytes()
+        b = (tmp_path / "there" / f"{name}.png").read_bytes()
+        assert a == b, name
+    assert not [p for p in (tmp_path / "there").iterdir() if p.name.startswith(".batch")]
+    with FigureWorkers(1) as idle:  # never handed a batch: let go on leaving
+        process = idle.processes[0]
+    assert process.returncode == 0

@@ -43,10 +43,11 @@ from .content import (
 )
 from .html import write_html
 from .package import write_review_package
-from .render import render_figures
+from .render import FigureWorkers, render_figures
 from .tables import checks_table, envelope_table, report_tables, transfer_tables, write_tables
 
-__all__ = ["write_review_package", "write_tables", "build_report", "render_figures", "write_html", "Report",
+__all__ = ["write_review_package", "write_tables", "build_report", "render_figures", "FigureWorkers",
+           "write_html", "Report",
            "Section", "Table", "FigureSpec", "TitleBlock", "METHODS_TEXT", "LIMITATIONS_TEXT", "FIGURE_CHOICES",
            "PAGE_SIZES", "report_tables", "transfer_tables", "envelope_table", "checks_table",
            "fe_unit_shear_along_span", "sensitivity_tables"]

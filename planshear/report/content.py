@@ -13,7 +13,7 @@ import numpy as np
 from .. import __version__
 from ..caution import CAUTION
 from .figures import broken_at, line_gaps
-from .tables import _base_cases, _plain, checks_table, envelope_table, report_tables
+from .tables import _base_cases, _plain, checks_table, chord_label, envelope_table, report_tables
 
 __all__ = ["build_report", "Report", "Section", "Table", "FigureSpec", "TitleBlock", "METHODS_TEXT",
            "LIMITATIONS_TEXT", "FIGURE_CHOICES", "PAGE_SIZES", "fe_unit_shear_along_span", "sensitivity_tables"]
@@ -426,10 +426,9 @@ def _member_specs(doc: dict, group: str) -> list[FigureSpec]:
             note = f"With Ω0 (ASCE 7-16 §12.10.2.1): {_fmt(w['value'])} {f}, {_named(w['assumption'])} {w['case']}."
         where = f"along line {name}" if group == "collectors" else f"along {name} from its first corner"
         role = "Collector" if group == "collectors" else "Chord"
-        named = slots.get("member") or name
-        named = named if named == name or group == "collectors" else f"{named} (outline {name})"
+        named = (slots.get("member") or name) if group == "collectors" else chord_label(name, slots)
         specs.append(FigureSpec(
-            f"{role.lower()}_{k:02d}_{_slug(name)}", f"{role} force, {named}", "member_diagram_figure",
+            f"{role.lower()}_{k:02d}_{_slug(named)}", f"{role} force, {named}", "member_diagram_figure",
             {"title": f"{role} force, {named}", "xlabel": f"position {where} ({p})",
              "ylabel": f"N ({f}), tension +", "series": series, "marks": marks, "note": note}))
     return specs

@@ -559,8 +559,26 @@ def _worker(batch: str) -> None:
     path.with_suffix(".out").write_bytes(pickle.dumps(sizes))
 
 
+def _waiting_worker() -> None:
+    """``... figures.py --wait``: a worker started ahead of its work. It loads matplotlib's
+    drawing machinery (one small figure with text, drawn and thrown away), then reads one line
+    from stdin: the path of its batch, or nothing (end of input) when no batch came its way."""
+    import sys
+
+    fig = Figure(figsize=(1, 1))
+    FigureCanvasAgg(fig)
+    fig.text(0.5, 0.5, "warm-up")
+    fig.canvas.draw()
+    batch = sys.stdin.readline().strip()
+    if batch:
+        _worker(batch)
+
+
 if __name__ == "__main__":
     import sys
 
-    _worker(sys.argv[-1])
+    if sys.argv[-1] == "--wait":
+        _waiting_worker()
+    else:
+        _worker(sys.argv[-1])
 

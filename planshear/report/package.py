@@ -9,7 +9,7 @@ from pathlib import Path
 from ..errors import AnalysisError
 from .content import FIGURE_CHOICES, PAGE_SIZES, build_report
 from .html import write_html
-from .render import render_figures
+from .render import FigureWorkers, render_figures
 from .tables import write_tables
 
 __all__ = ["write_review_package"]
@@ -17,11 +17,13 @@ __all__ = ["write_review_package"]
 
 def write_review_package(folder: Path, results, doc: dict, figures: str = "key", page_size: str = "letter",
                          workers: int | None = None, timings: dict | None = None,
-                         meanwhile: Callable[[], None] | None = None) -> list[str]:
+                         meanwhile: Callable[[], None] | None = None,
+                         started_workers: FigureWorkers | None = None) -> list[str]:
     """Write report.html, report.pdf, the CSV tables and figures/ into ``folder``.
     ``figures``: one of :data:`FIGURE_CHOICES`; ``page_size``: a key of
     :data:`PAGE_SIZES`; ``timings`` (optional dict) receives seconds per step;
-    ``meanwhile`` (optional) is other writing done once, while the figure processes draw."""
+    ``meanwhile`` (optional) is other writing done once, while the figure processes draw;
+    ``started_workers`` (optional): figure processes started earlier (:class:`FigureWorkers`)."""
     from .pdf import write_pdf
 
     if figures not in FIGURE_CHOICES:
@@ -47,7 +49,8 @@ def write_review_package(folder: Path, results, doc: dict, figures: str = "key",
         while pending:
             pending.pop()()
 
-    sizes = render_figures(report, doc, results, figures_dir, figures, workers, timings, other_writing)
+    sizes = render_figures(report, doc, results, figures_dir, figures, workers, timings, other_writing,
+                           started_workers)
     other_writing()  # when no figure was drawn
     clock = time.perf_counter()
     write_pdf(folder / "report.pdf", report, figures_dir, sizes, page_size)

@@ -11,12 +11,13 @@ from pathlib import Path
 from ..errors import AnalysisError
 from .content import FigureSpec, Report
 
-__all__ = ["render_figures", "PARALLEL_FROM"]
+__all__ = ["render_figures", "FigureWorkers", "PARALLEL_FROM"]
 
 
 def render_figures(report: Report, doc: dict, results, folder: Path, choice: str = "key",
                    workers: int | None = None, timings: dict | None = None,
-                   meanwhile: Callable[[], None] | None = None) -> dict[str, tuple[float, float]]:
+                   meanwhile: Callable[[], None] | None = None,
+                   started_workers: FigureWorkers | None = None) -> dict[str, tuple[float, float]]:
     """Draw the figures ``choice`` keeps into ``folder`` (PNG; SVG where asked): name →
     (width, height) in inches.
 
@@ -24,7 +25,9 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
     processes draw a share each while this one draws its own (None: one per idle core,
     see :func:`_helpers`). A worker runs planshear/report/figures.py alone (numpy and
     matplotlib, not the whole package, and nothing of the calling program) on a pickle of
-    plain data; a batch whose worker fails is drawn here instead."""
+    plain data; a batch whose worker fails is drawn here instead. ``started_workers``
+    (optional) are processes started earlier (:class:`FigureWorkers`), used instead of
+    starting new ones; those not given a batch are let go."""
     from .figures import render
 
     specs = report.figures(choice)
@@ -39,13 +42,17 @@ def render_figures(report: Report, doc: dict, results, folder: Path, choice: str
     start = time.perf_counter()
     local = [s for s in specs if s.local]
     shared = [s for s in specs if not s.local]
-    helpers = _helpers(workers) if len(shared) >= PARALLEL_FROM else 0
+    if started_workers is not None:  # already running: they cost nothing more to use
+        helpers = started_workers.count if shared else 0
+    else:
+        helpers = _helpers(workers) if len(shared) >= PARALLEL_FROM else 0
     # Every (helpers + 1)-th figure to each process (the costly maps come in pairs, so they
     # are spread); this process also draws the plan, so it takes a smaller share.
     batches = [shared[k::helpers + 1] for k in range(helpers + 1)]
     started = []
     try:
-        started = _start_workers(batches[1:], folder)
+        started = (started_workers.hand_out(batches[1:], folder) if started_workers is not None
+                   else _start_workers(batches[1:], folder))
         if meanwhile is not None:  # e.g. the mesh files, while the helper processes draw
             meanwhile()
         for spec in local + batches[0]:
@@ -95,21 +102,92 @@ def _helpers(workers: int | None) -> int:
 def _start_workers(batches: list[list[FigureSpec]], folder: Path) -> list:
     """Start one figure process per batch: [(process, batch file, batch)]."""
     import subprocess
-    import sys
 
-    script = str(Path(__file__).with_name("figures.py"))
-    launcher = "import runpy, sys; runpy.run_path(sys.argv[1], run_name='__main__')"
     started = []
     for k, batch in enumerate(batches):
         if not batch:
             continue
         path = folder / f".batch-{k}.pickle"
         path.write_bytes(pickle.dumps([(s.draw, s.kwargs, str(folder), s.name, s.svg) for s in batch]))
-        process = subprocess.Popen([sys.executable, "-c", launcher, script, str(path)],
-                                   stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        process = subprocess.Popen(_worker_command(str(path)), stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
         started.append((process, path, batch))
     return started
 
 
 #: Fewest figures drawn in worker processes (below this, starting the processes costs more).
 PARALLEL_FROM = 8
+
+
+def _worker_command(*args: str) -> list[str]:
+    """The command line of a figure process: planshear/report/figures.py run alone."""
+    import sys
+
+    script = str(Path(__file__).with_name("figures.py"))
+    launcher = "import runpy, sys; runpy.run_path(sys.argv[1], run_name='__main__')"
+    return [sys.executable, "-c", launcher, script, *args]
+
+
+class FigureWorkers:
+    """Figure processes started before the analysis, so that their start-up (Python, numpy
+    and matplotlib imports, about 0.6 s each) runs on idle cores while this process
+    analyzes; :func:`render_figures` then hands each one its batch. Use as a context
+    manager: on leaving, a worker that got no batch is let go (its input closed) and one
+    still running is waited for (stopped if it does not end within 5 s).
+
+    ``count``: processes to start (None: one per idle core, see :func:`_helpers`)."""
+
+    def __init__(self, count: int | None = None):
+        import subprocess
+
+        self.processes = []
+        for _ in range(_helpers(None) if count is None else max(0, count)):
+            try:
+                self.processes.append(subprocess.Popen(
+                    _worker_command("--wait"), stdin=subprocess.PIPE, stdout=subprocess.DEVNULL,
+                    stderr=subprocess.DEVNULL))
+            except OSError:  # could not start one: the figures are drawn here instead
+                break
+        self._waiting = list(self.processes)
+
+    @property
+    def count(self) -> int:
+        """Workers still waiting for a batch."""
+        return len(self._waiting)
+
+    def hand_out(self, batches: list[list[FigureSpec]], folder: Path) -> list:
+        """Give each non-empty batch to a waiting worker: [(process, batch file, batch)]."""
+        handed = []
+        for k, batch in enumerate(batches):
+            if not batch or not self._waiting:
+                continue
+            process = self._waiting.pop(0)
+            path = folder / f".batch-{k}.pickle"
+            path.write_bytes(pickle.dumps([(s.draw, s.kwargs, str(folder), s.name, s.svg) for s in batch]))
+            try:
+                process.stdin.write(f"{path}\n".encode())
+                process.stdin.close()
+            except OSError:  # the worker is gone: render_figures draws this batch itself
+                pass
+            handed.append((process, path, batch))
+        return handed
+
+    def __enter__(self) -> FigureWorkers:
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+    def close(self) -> None:
+        """Let waiting workers go; wait for the others (stopped after 5 s)."""
+        for process in self._waiting:
+            try:
+                process.stdin.close()
+            except OSError:
+                pass
+        self._waiting = []
+        for process in self.processes:
+            try:
+                process.wait(timeout=5)
+            except Exception:  # noqa: BLE001 - a stuck worker must not keep the program alive
+                process.kill()
+                process.wait()

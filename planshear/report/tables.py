@@ -46,6 +46,16 @@ def _base_cases(doc: dict) -> dict[str, str]:
     return {axis: name for axis, (name, _) in chosen.items()}
 
 
+def chord_label(key: str, slots: dict) -> str:
+    """A chord as a reviewer names it: its part ("line B, 3–4"), and the member it belongs to
+    where that is longer ("line B, 3–4 (of line B, 1–4)"); the envelope key only where
+    neither is known (a transfer region's chord keeps its own name)."""
+    part, member = slots.get("part"), slots.get("member")
+    if part is None:
+        return member or key
+    return part if member in (None, part) else f"{part} (of {member})"
+
+
 def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     """The report's tables, built only from the results document."""
     units = doc["units"]
@@ -142,8 +152,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
          if slots.get("design")],
     )
     tables["chords"] = (
-        ["member (outline edge)", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
-        [[f"{s['member']} ({n})" if "member" in s else n, s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
+        ["chord (of member)", f"design peak ({f})", "governs", f"largest of all assumptions ({f})"],
+        [[chord_label(n, s), s["design"] and s["design"]["value"], s["design"] and f"{s['design']['assumption']} {s['design']['case']}",
           s["information"] and s["information"]["value"]] for n, s in envelope["chords"].items()],
     )
     rows, line_rows = [], []
