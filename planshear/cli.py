@@ -234,7 +234,8 @@ def _diff(args) -> int:
     comparison = compare_runs(args.run_a, args.run_b, args.threshold)
     if args.csv:
         write_csv(comparison, args.csv)
-    print(format_table(comparison, show_all=args.all))
+    console = make_console()
+    console.print(format_table(comparison, show_all=args.all, width=console.width if console.is_terminal else None))
     return EXIT_OK
 
 

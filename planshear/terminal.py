@@ -44,15 +44,18 @@ def _isatty(stream) -> bool:
         return False
 
 
-def table(console: Console, *columns: str | tuple[str, str], title: str | None = None) -> Table:
+def table(console: Console, *columns: str | tuple[str, str], title: str | None = None,
+          fit: bool | None = None) -> Table:
     """A table in our plain style: a rule under the headers, no frame. ``columns`` are
-    headers, or (header, "right") for right-aligned numbers. Off a terminal no cell wraps."""
+    headers, or (header, "right") for right-aligned numbers. Cells wrap to fit the width
+    on a terminal (or with ``fit``); otherwise no cell wraps."""
+    fit = console.is_terminal if fit is None else fit
     t = Table(box=box.SIMPLE_HEAD, show_edge=False, pad_edge=False, title=title, title_justify="left",
               header_style="bold" if console.is_terminal else None, title_style=None)
     for column in columns:
         header, justify = column if isinstance(column, tuple) else (column, "left")
         # On a terminal a long name folds onto a second line rather than being cut short.
-        t.add_column(header, justify=justify, no_wrap=not console.is_terminal, overflow="fold")
+        t.add_column(header, justify=justify, no_wrap=not fit, overflow="fold")
     return t
 
 
