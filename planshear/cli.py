@@ -417,17 +417,18 @@ def _print_collectors(results: Results, doc: dict, envelope: dict, console) -> N
         if name not in with_walls and nil and "caution" not in slots:
             left_out.append(name)
             continue
-        capped = "Exception 1" in (slots.get("overstrength") or {}).get("governs", "")
+        rule = (slots.get("overstrength") or {}).get("governs", "").split(":")[0]  # "item 2", "Exception 1"…
         omega_cells = (force_text(omega["value"], force),
                        sense(omega, slots.get("with_overstrength_tension"), slots.get("with_overstrength_compression")),
-                       governs(omega) + (" (cap)" if capped else "")) if omega else ("", "", "")
-        basis = slots.get("collector_in_model") or ("none" if "semirigid" in doc["assumptions"] else "")
+                       governs(omega) + (f", {rule}" if rule else "")) if omega else ("", "", "")
+        basis = slots.get("collector_in_model") or ("no walls on it" if name not in with_walls
+                                                    else "none" if "semirigid" in doc["assumptions"] else "")
         rows.add_row(name, force_text(design["value"], force),
                      sense(design, slots.get("tension"), slots.get("compression")), governs(design),
                      *omega_cells, basis + ("  (!) no collector bar in the model" if "caution" in slots else ""))
     console.print(f"\ncollector forces ({force}): design envelope, and with overstrength per ASCE 7-16 §12.10.2.1 "
-                  "(Ω0, seismic cases only; (cap): the Exception 1 cap at Eq. 12.10-3 governs); the two may come from "
-                  "different cases. In model: the collector in the semi-rigid model (declared member, outline chord, "
+                  "(Ω0 on seismic cases, with the item or exception of §12.10.2.1 that governs; Exception 1: the cap at "
+                  "Eq. 12.10-3); the two may come from different cases. In model: the collector in the semi-rigid model (declared member, outline chord, "
                   "implied, none; blank when it did not run)")
     if rows.row_count:
         console.print(rows)
