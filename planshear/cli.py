@@ -403,6 +403,7 @@ def _print_collectors(results: Results, doc: dict, envelope: dict, console) -> N
     without walls whose collector force is nil in every case are left out (counted)."""
     force = doc["units"]["force"]
     with_walls = {w.line for w in results.plan.walls}
+    grid = {line.name for line in results.plan.grid_lines}
     rows = table(console, "line", ("design", "right"), "", "governs", ("with Ω0", "right"), "", "governs",
                  "in model")
     cautions, left_out = [], []
@@ -421,15 +422,16 @@ def _print_collectors(results: Results, doc: dict, envelope: dict, console) -> N
         omega_cells = (force_text(omega["value"], force),
                        sense(omega, slots.get("with_overstrength_tension"), slots.get("with_overstrength_compression")),
                        governs(omega) + (f", {rule}" if rule else "")) if omega else ("", "", "")
-        basis = slots.get("collector_in_model") or ("no walls on it" if name not in with_walls
-                                                    else "none" if "semirigid" in doc["assumptions"] else "")
+        basis = slots.get("collector_in_model") or (
+            "" if name not in grid or "semirigid" not in doc["assumptions"]  # e.g. a transfer collector
+            else "none" if name in with_walls else "no walls on it")
         rows.add_row(name, force_text(design["value"], force),
                      sense(design, slots.get("tension"), slots.get("compression")), governs(design),
                      *omega_cells, basis + ("  (!) no collector bar in the model" if "caution" in slots else ""))
     console.print(f"\ncollector forces ({force}): design envelope, and with overstrength per ASCE 7-16 §12.10.2.1 "
                   "(Ω0 on seismic cases, with the item or exception of §12.10.2.1 that governs; Exception 1: the cap at "
                   "Eq. 12.10-3); the two may come from different cases. In model: the collector in the semi-rigid model (declared member, outline chord, "
-                  "implied, none; blank when it did not run)")
+                  "implied, none, or no walls on the line; blank when it did not run)")
     if rows.row_count:
         console.print(rows)
     for line in cautions:
