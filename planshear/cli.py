@@ -368,13 +368,15 @@ def _print_results(results: Results, out: Path, console=None) -> None:
     if chosen:
         say(f"\n{chosen['label']}")
         rows = table(console, "item", ("design", "right"), "", "governs")
+        with_walls = {w.line for w in results.plan.walls}
         for group in ("walls", "collectors", "chords"):
             for name, slots in chosen.get(group, {}).items():
                 design = slots.get("design")
-                if design:
-                    word = "" if group == "walls" else sense(design, slots.get("tension"), slots.get("compression"))
-                    rows.add_row(f"{group[:-1]} {slots.get('member', name)}", force_text(design["value"], force),
-                                 word, governs(design))
+                if not design or (group == "collectors" and _nil_line(name, slots, with_walls)):
+                    continue
+                word = "" if group == "walls" else sense(design, slots.get("tension"), slots.get("compression"))
+                label = slots.get("member", name) if group == "chords" else name
+                rows.add_row(f"{group[:-1]} {label}", force_text(design["value"], force), word, governs(design))
         say(rows)
     say(f"\nresults written to {out}/")
     say(CAUTION)
@@ -414,8 +416,7 @@ def _print_collectors(results: Results, doc: dict, envelope: dict, console) -> N
             continue
         if not design:
             continue
-        nil = all(g is None or abs(g["value"]) < 0.005 for g in (design, omega))  # 0.00 as printed
-        if name not in with_walls and nil and "caution" not in slots:
+        if _nil_line(name, slots, with_walls):
             left_out.append(name)
             continue
         rule = (slots.get("overstrength") or {}).get("governs", "").split(":")[0]  # "item 2", "Exception 1"…
@@ -439,6 +440,14 @@ def _print_collectors(results: Results, doc: dict, envelope: dict, console) -> N
     if left_out:
         console.print(f"  {len(left_out)} line(s) without walls and without collector force left out: "
                       f"{', '.join(left_out)}")
+
+
+def _nil_line(name: str, slots: dict, with_walls: set[str]) -> bool:
+    """A collector entry with nothing to design: no walls on the line, no caution, and its
+    design and Ω0 values 0.00 as printed."""
+    values = [slots.get(key) for key in ("design", "with_overstrength")]
+    return (name not in with_walls and "caution" not in slots
+            and all(g is None or abs(g["value"]) < 0.005 for g in values))
 
 
 def _print_chords(doc: dict, envelope: dict, console) -> None:
