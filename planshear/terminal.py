@@ -9,6 +9,7 @@ ANSI codes, no live display, and a width so large that no table row is ever wrap
 from __future__ import annotations
 
 import math
+import os
 import sys
 import time
 from collections.abc import Callable, Iterator
@@ -25,6 +26,18 @@ __all__ = ["make_console", "table", "stages", "batch_progress", "force_text", "s
 PLAIN_WIDTH = 10_000
 
 
+class _Console(Console):
+    def on_broken_pipe(self) -> None:
+        """The reader went away (``| head``): stop writing, and let the CLI decide (it is
+        not an error there) instead of rich's SystemExit(1)."""
+        self.quiet = True
+        try:  # later writes and the flush at exit go to /dev/null, not to the closed pipe
+            os.dup2(os.open(os.devnull, os.O_WRONLY), self.file.fileno())
+        except (AttributeError, OSError, ValueError):  # not a real file (e.g. StringIO)
+            pass
+        raise BrokenPipeError
+
+
 def make_console(stream: TextIO | None = None) -> Console:
     """A console on ``stream`` (default: the current sys.stdout). Colour, live displays and
     the window width only when the stream is a terminal; plain text otherwise. Markup and
@@ -32,7 +45,7 @@ def make_console(stream: TextIO | None = None) -> Console:
     they are."""
     stream = sys.stdout if stream is None else stream
     tty = _isatty(stream)
-    return Console(file=stream, force_terminal=tty, color_system="auto" if tty else None,
+    return _Console(file=stream, force_terminal=tty, color_system="auto" if tty else None,
                    width=None if tty else PLAIN_WIDTH, markup=False, highlight=False, emoji=False,
                    soft_wrap=not tty, force_interactive=tty)
 
