@@ -11,7 +11,6 @@ import argparse
 import contextlib
 import json
 import sys
-import time
 from importlib import resources
 from pathlib import Path
 
@@ -19,6 +18,15 @@ from .errors import AnalysisError, EquilibriumError, PlanError
 from .mesh_export import MESH_UNIT_CHOICES
 from .plan import load_plan, parse_plan
 from .run import CAUTION, Results, analyze, plan_summary
+from .terminal import (
+    batch_progress,
+    force_text,
+    governs,
+    make_console,
+    sense,
+    stages,
+    table,
+)
 
 EXIT_OK, EXIT_INTERNAL, EXIT_BAD_INPUT = 0, 1, 2
 
@@ -134,9 +142,10 @@ def main(argv: list[str] | None = None) -> int:
             if args.format == "json":
                 print(json.dumps(summary | {"unavailable": not_run}, indent=1, ensure_ascii=False))
             else:
-                _print_check(summary)
+                console = make_console()
+                _print_check(summary, console)
                 for assumption, reason in not_run.items():
-                    print(f"  {assumption}: cannot be run — {reason}")
+                    console.print(f"  {assumption}: cannot be run — {reason}")
             return EXIT_OK
         if args.command == "batch":
             return _batch(args)
@@ -149,17 +158,18 @@ def main(argv: list[str] | None = None) -> int:
         else:
             plan = load_plan(args.plan)
             out = Path(args.out) if args.out else Path(f"{Path(args.plan).stem}-results")
-        progress = _progress_printer(quiet=args.quiet or args.format == "json")
-        with _figure_workers(args) as workers:  # they start up while the analysis runs
+        quiet = args.quiet or args.format == "json"
+        with stages(make_console(sys.stderr), enabled=not quiet) as progress, \
+                _figure_workers(args) as workers:  # the figure processes start up while the analysis runs
             results = analyze(plan, progress=progress)
             progress("writing results, report, figures and mesh files")
             results.write(out, report=not args.no_report, mesh_units=args.mesh_units, figures=args.figures,
                           page_size=args.page_size, figure_workers=workers)
-        progress("done")
+            progress("done")
         if args.format == "json":
             print(json.dumps(_short_json(results), indent=1, ensure_ascii=False))
         elif not args.quiet:
-            _print_results(results, out)
+            _print_results(results, out, make_console())
         return EXIT_OK
     except PlanError as exc:
         for problem in exc.problems:
@@ -203,21 +213,26 @@ def _batch(args) -> int:
         raise PlanError([f"--workers {args.workers}: give at least 1"])
     jobs = make_jobs(plans, axes, variants)
     show = not args.quiet
+    err = make_console(sys.stderr)
     if show:
         where = ("in this process" if args.serial else f"on the Dask scheduler {args.scheduler}" if args.scheduler
                  else "on a local Dask cluster")
-        print(f"{len(jobs)} run(s) {where}", file=sys.stderr)
-    outcome = run_batch(jobs, args.out, scheduler=args.scheduler, workers=args.workers, serial=args.serial,
-                        report=not args.no_report, progress=show and sys.stdout.isatty() and not args.serial)
+        err.print(f"{len(jobs)} run(s) {where}")
+    with batch_progress(err, len(jobs), enabled=show) as on_done:
+        outcome = run_batch(jobs, args.out, scheduler=args.scheduler, workers=args.workers, serial=args.serial,
+                            report=not args.no_report, on_done=on_done)
     if show:
+        console = make_console()
+        errors = ("error",) if outcome.failed else ()
+        rows = table(console, "status", "run", "verdict x", "verdict y", "largest wall force", *errors)
         for run in outcome.runs:
-            verdicts = "  ".join(f"{k}: {v}" for k, v in run.row.items() if k.startswith("verdict"))
-            largest = next((f"largest wall {run.row['largest wall']} {v:.2f} {k.split('[')[1][:-1]}"
-                            for k, v in run.row.items() if k.startswith("largest wall force")), "")
-            state = "ok    " if run.status == "ok" else "FAILED"
-            print(f"{state} {run.name}" + (f"  {verdicts}  {largest}" if run.status == "ok" else f": {run.error}"))
-        print(f"summary: {outcome.out}/summary.csv and summary.parquet ({len(outcome.runs) - len(outcome.failed)} "
-              f"ok, {len(outcome.failed)} failed; a failed run's traceback is in its folder's error.txt)")
+            largest = next((f"{run.row['largest wall']} {force_text(v, k.split('[')[1][:-1])}"
+                            for k, v in run.row.items() if k.startswith("largest wall force") and v is not None), "")
+            rows.add_row("ok" if run.status == "ok" else "FAILED", run.name, str(run.row.get("verdict x") or ""),
+                         str(run.row.get("verdict y") or ""), largest, *([run.error or ""] if errors else []))
+        console.print(rows)
+        console.print(f"summary: {outcome.out}/summary.csv and summary.parquet ({len(outcome.runs) - len(outcome.failed)}"
+                      f" ok, {len(outcome.failed)} failed; a failed run's traceback is in its folder's error.txt)")
     if not outcome.failed:
         return EXIT_OK
     serious = any(r.error_kind not in ("bad input", "analysis") for r in outcome.failed)
@@ -230,57 +245,51 @@ def _diff(args) -> int:
     comparison = compare_runs(args.run_a, args.run_b, args.threshold)
     if args.csv:
         write_csv(comparison, args.csv)
-    print(format_table(comparison, show_all=args.all))
+    console = make_console()
+    console.print(format_table(comparison, show_all=args.all, width=console.width if console.is_terminal else None))
     return EXIT_OK
 
 
-def _progress_printer(quiet: bool):
-    """Stage messages with elapsed time on stderr, only when it is a terminal."""
-    if quiet or not sys.stderr.isatty():
-        return lambda stage: None
-    start = time.perf_counter()
-
-    def show(stage: str) -> None:
-        print(f"[{time.perf_counter() - start:6.1f} s] {stage}", file=sys.stderr, flush=True)
-
-    return show
-
-
-def _print_check(summary: dict) -> None:
-    print(f"plan: {summary['name']} ({summary['file']}) — OK")
+def _print_check(summary: dict, console) -> None:
+    """The plan summary of ``planshear check``: every number with its unit (a dimensionless
+    one says so)."""
+    say = console.print
+    say(f"plan: {summary['name']} ({summary['file']}) — OK")
     area_key = next(k for k in summary if k.startswith("area_"))
-    print(f"  diaphragm area: {summary[area_key]:.6g} {area_key[5:]}")
-    print(f"  walls along x: {', '.join(summary['walls_along_x']) or '-'}")
-    print(f"  walls along y: {', '.join(summary['walls_along_y']) or '-'}")
-    force = summary["stiffness_unit"].split("/")[0]
+    say(f"  diaphragm area: {summary[area_key]:.6g} {area_key[5:]}")
+    say(f"  walls along x: {', '.join(summary['walls_along_x']) or '-'}")
+    say(f"  walls along y: {', '.join(summary['walls_along_y']) or '-'}")
+    force, displacement = summary["stiffness_unit"].split("/")
     length = summary["length_unit"]
+
+    def point(coordinates) -> str:
+        return "(" + ", ".join(f"{c:.4g} {length}" for c in coordinates) + ")"
+
     for name, load in summary["loads"].items():
         line = f"  load {name} ({load['kind']}):"
         if "seismic_weight" in load:
-            cm = ", ".join(f"{c:.4g}" for c in load["center_of_mass"])
-            line += f" weight {load['seismic_weight']:.5g} {force}, center of mass ({cm}) {length},"
+            line += f" weight {load['seismic_weight']:.5g} {force}, center of mass {point(load['center_of_mass'])},"
             for axis, own in load.get("by_direction", {}).items():  # only_across weights
-                at = ", ".join(f"{c:.4g}" for c in own["center_of_mass"])
-                line += f" [along {axis}: weight {own['seismic_weight']:.5g} {force} at ({at})]"
-        line += " force " + ", ".join(f"{axis}: {f:.5g} {force}" for axis, f in load["force"].items())
+                line += f" [along {axis}: weight {own['seismic_weight']:.5g} {force} at {point(own['center_of_mass'])}]"
+        line += " force " + ", ".join(f"along {axis} {f:.5g} {force}" for axis, f in load["force"].items())
         if load.get("fpx_equation"):
-            values = ", ".join(f"Eq. {eq} {v:.5g}" for eq, v in load["fpx_values"].items())
-            line += f"; Fpx by ASCE 7-16 Eq. {load['fpx_equation']} ({values} {force})"
+            values = ", ".join(f"Eq. {eq}: {v:.5g} {force}" for eq, v in load["fpx_values"].items())
+            line += f"; Fpx by ASCE 7-16 Eq. {load['fpx_equation']} ({values})"
         elif load["kind"] == "seismic":
             line += " (total given in the plan)"
         if "fx" in load:
             line += f"; walls and drifts at Fx = {load['fx']:.5g} {force}"
         if "fx_distribution" in load:
             elf = load["fx_distribution"]
-            line += (f" (level {elf['level']} of the ELF distribution, k = {elf['k']:.3g}; ΣFi/Σwi at and above it "
-                     f"{elf['story_force_ratio']:.4g})")
-        print(line)
+            line += (f" (level {elf['level']} of the ELF distribution, exponent k = {elf['k']:.3g} (dimensionless); "
+                     f"ΣFi/Σwi at and above it {elf['story_force_ratio']:.4g} (dimensionless))")
+        say(line)
     for name, splice in summary.get("splices", {}).items():
-        at = ", ".join(f"{c:.4g}" for c in splice["at"])
-        slip = (f", slip {splice['slip']:.4g} {summary['stiffness_unit'].split('/')[1]} at {splice['at_force']:.4g} {force}" if splice["slip"] is not None else "")
-        print(f"  splice {name} at ({at}) {length} in the {splice['on']}: {splice['stiffness']:.4g} "
-              f"{summary['stiffness_unit']}{slip}")
-    print(f"  load cases: {', '.join(summary['cases'])}")
+        slip = (f", slip {splice['slip']:.4g} {displacement} at {splice['at_force']:.4g} {force}"
+                if splice["slip"] is not None else "")
+        say(f"  splice {name} at {point(splice['at'])} in the {splice['on']}: {splice['stiffness']:.4g} "
+            f"{summary['stiffness_unit']}{slip}")
+    say(f"  load cases: {', '.join(summary['cases'])}")
 
 
 def _short_json(results: Results) -> dict:
@@ -293,123 +302,189 @@ def _short_json(results: Results) -> dict:
     return short
 
 
-def _print_checks(doc: dict) -> None:
+def _print_checks(doc: dict, console) -> None:
     """Design checks, failures first (only when the plan gives capacities), and splice forces."""
+    say = console.print
     force = doc["units"]["force"]
     for splice in doc.get("splice_forces", []):
-        cells = [f"{key} {splice[key]['value']:.2f} {force} ({splice[key]['assumption']} {splice[key]['case']})"
+        cells = [f"{key} {force_text(splice[key]['value'], force)} ({governs(splice[key])})"
                  for key in ("tension", "compression") if splice.get(key)]
-        print(f"splice {splice['name']} in {splice['member'] or 'no member'}: " + ("; ".join(cells) or "no force"))
+        say(f"splice {splice['name']} in {splice['member'] or 'no member'}: " + ("; ".join(cells) or "no force"))
     checks = doc.get("checks")
     if not checks:
         return
     failures = checks["failures"]
-    print(f"\ndesign checks ({checks['basis']}; D/C = demand / capacity): "
-          + (f"{failures} FAIL" if failures else "all checks with a capacity pass"))
+    say(f"\ndesign checks ({checks['basis']}; D/C = demand / capacity): "
+        + (f"{failures} FAIL" if failures else "all checks with a capacity pass"))
+    rows = table(console, "status", ("D/C", "right"), "item", "quantity", ("demand", "right"), ("capacity", "right"),
+                 "governs")
     for c in checks["items"]:
         if c["status"] == "no capacity":
             continue
-        unit = c["unit"]
-        mark = "FAILS" if c["status"] == "fails" else "ok"
-        print(f"  {mark:5} D/C {c['ratio']:6.2f}  {c['item']} {c['quantity']}: {c['demand']:.2f} of "
-              f"{c['capacity']:.2f} {unit}  ({c['assumption']} {c['case']})")
+        rows.add_row("FAILS" if c["status"] == "fails" else "ok", f"{c['ratio']:.2f}", c["item"], c["quantity"],
+                     f"{abs(c['demand']):.2f} {c['unit']}", f"{c['capacity']:.2f} {c['unit']}", governs(c))
+    if rows.row_count:
+        say(rows)
     missing = sorted({c["item"] for c in checks["items"] if c["status"] == "no capacity"})
     if missing:
-        print(f"  no capacity given: {', '.join(missing)}")
+        say(f"  no capacity given: {', '.join(missing)}")
 
 
-def _print_results(results: Results, out: Path) -> None:
+def _print_results(results: Results, out: Path, console=None) -> None:
+    console = console or make_console()
+    say = console.print
     doc = results.to_json()
     units = doc["units"]
     force = units["force"]
-    print(f"plan: {doc['plan']['name']}")
-    _print_checks(doc)
+    say(f"plan: {doc['plan']['name']}")
+    _print_checks(doc, console)
     for assumption, reason in doc["unavailable"].items():
-        print(f"\n{assumption}: not run — {reason}")
+        say(f"\n{assumption}: not run — {reason}")
     classification = doc.get("classification")
     if classification:
-        print("\nflexibility (" + classification["criterion"] + ")")
+        say("\nflexibility (" + classification["criterion"] + ")")
         if classification.get("calculated") is False:
-            print(f"  cannot be calculated: {classification['reason']}")
-            print(f"  {classification['note']}")
+            say(f"  cannot be calculated: {classification['reason']}")
+            say(f"  {classification['note']}")
         for axis, check in classification["directions"].items():
-            print(f"  load along {axis}: {check['verdict']}")
+            say(f"  load along {axis}: {check['verdict']}")
             governing = [s for s in check["spans"] if f"{s['span']} ({s['case']})" == check["governing_span"]]
             for span in governing:
                 ratio = "inf" if span["ratio"] is None else f"{span['ratio']:.2f}"
-                print(f"    governing span {span['span']} ({span['case']}): MDD {span['MDD']:.3f} {units['displacement']}, "
-                      f"ADVE {span['ADVE']:.3f} {units['displacement']}, ratio {ratio}")
+                say(f"    governing span {span['span']} ({span['case']}): MDD {span['MDD']:.3f} {units['displacement']}, "
+                    f"ADVE {span['ADVE']:.3f} {units['displacement']}, ratio {ratio}")
             for note in check.get("notes", ()):
-                print(f"    note: {note}")
-    _print_irregularities(doc)
-    methods = list(doc["assumptions"])
+                say(f"    note: {note}")
+    _print_irregularities(doc, console)
     envelope = doc.get("envelope") or {}
-    print(f"\ndesign basis: {doc['plan']['design_basis']} — "
-          + "; ".join(f"{n}: {ld['combination']}" for n, ld in doc["plan"]["loads"].items()))
-    print(f"wall forces ({force}): largest magnitude over all cases (at Fx where a seismic load gives fx), on the "
-          "design basis; design = envelope of allowed assumptions")
-    header = "  " + "wall".ljust(8) + "".join(m.rjust(11) for m in methods) + "design".rjust(11) + "  governs"
-    print(header)
+    say(f"\ndesign basis: {doc['plan']['design_basis']} — "
+        + "; ".join(f"{n}: {ld['combination']}" for n, ld in doc["plan"]["loads"].items()))
+    _print_walls(doc, envelope, console)
+    _print_collectors(results, doc, envelope, console)
+    _print_chords(doc, envelope, console)
+    _print_walls_along_chords(doc, console)
+    drift = doc.get("drift")
+    if drift:
+        say(f"\nstory drift ({drift['clause']})")
+        rows = table(console, "wall or line", ("δxe", "right"), ("δx", "right"), ("δx/h", "right"), "allowable",
+                     "governs", "")
+        d = units["displacement"]
+        for group in ("walls", "lines"):
+            for name, c in drift[group].items():
+                rows.add_row(f"{group[:-1]} {name}", f"{c['elastic']:.3f} {d}", f"{c['amplified']:.3f} {d}",
+                             f"{c['ratio']:.4f}", f"{'≤' if c['ok'] else '>'} {c['allowable']:g}", governs(c),
+                             "" if c["ok"] else "(!) exceeds the allowable drift")
+        say(rows)
+    chosen = doc.get("engineer_envelope")
+    if chosen:
+        say(f"\n{chosen['label']}")
+        rows = table(console, "item", ("design", "right"), "", "governs")
+        with_walls = {w.line for w in results.plan.walls}
+        for group in ("walls", "collectors", "chords"):
+            for name, slots in chosen.get(group, {}).items():
+                design = slots.get("design")
+                if not design or (group == "collectors" and _nil_line(name, slots, with_walls)):
+                    continue
+                word = "" if group == "walls" else sense(design, slots.get("tension"), slots.get("compression"))
+                label = slots.get("member", name) if group == "chords" else name
+                rows.add_row(f"{group[:-1]} {label}", force_text(design["value"], force), word, governs(design))
+        say(rows)
+    say(f"\nresults written to {out}/")
+    say(CAUTION)
+
+
+def _print_walls(doc: dict, envelope: dict, console) -> None:
+    """Wall forces: the largest magnitude per assumption and the design value with its case.
+    A wall force acts along the wall; its sign (the direction along the wall) is in
+    results.json and is not needed to size the wall."""
+    force = doc["units"]["force"]
+    console.print(f"\nwall forces ({force}): largest magnitude over all cases (at Fx where a seismic load gives fx), "
+                  "on the design basis; design = envelope of the allowed assumptions")
+    methods = list(doc["assumptions"])
+    rows = table(console, "wall", *[(f"{m} [{force}]", "right") for m in methods], ("design", "right"), "governs")
     for wall in doc["plan"]["wall_stiffness"]:
-        cells = []
-        for m in methods:
-            largest = envelope.get("walls", {}).get(wall, {}).get(m)
-            cells.append(f"{largest['value']:11.2f}" if largest else " " * 11)
-        design = envelope.get("walls", {}).get(wall, {}).get("design")
-        tail = f"{design['value']:11.2f}  {design['assumption']} {design['case']}" if design else ""
-        print("  " + wall.ljust(8) + "".join(cells) + tail)
-    print(f"\ncollector peaks ({force}): design envelope, and with overstrength per ASCE 7-16 §12.10.2.1 (Ω0 with "
-          "the Exception 1 cap at Eq. 12.10-3; seismic cases); [collector in the semi-rigid model: declared member, "
-          "outline chord, implied, none]")
+        slots = envelope.get("walls", {}).get(wall, {})
+        cells = [f"{abs(slots[m]['value']):.2f}" if slots.get(m) else "" for m in methods]
+        design = slots.get("design")
+        rows.add_row(wall, *cells, force_text(design["value"], force) if design else "",
+                     governs(design) if design else "")
+    console.print(rows)
+
+
+def _print_collectors(results: Results, doc: dict, envelope: dict, console) -> None:
+    """Collector design values (magnitude, tension / compression, case) and with Ω0; lines
+    without walls whose collector force is nil in every case are left out (counted)."""
+    force = doc["units"]["force"]
+    with_walls = {w.line for w in results.plan.walls}
+    grid = {line.name for line in results.plan.grid_lines}
+    rows = table(console, "line", ("design", "right"), "", "governs", ("with Ω0", "right"), "", "governs",
+                 "in model")
+    cautions, left_out = [], []
     for name, slots in envelope.get("collectors", {}).items():
         design, omega = slots.get("design"), slots.get("with_overstrength")
-        if design:
-            basis = slots.get("collector_in_model")
-            print(f"  {name.ljust(8)}{design['value']:11.2f}  ({design['assumption']} {design['case']})   "
-                  f"§12.10.2.1: {omega['value']:.2f}"
-                  + (" (cap)" if "Exception 1" in (slots.get("overstrength") or {}).get("governs", "") else "")
-                  + (f"   [{basis}]" if basis else "")
-                  + ("   (!) no collector bar in the model" if "caution" in slots else ""))
-        elif "caution" in slots:  # e.g. a transfer strut that only the idealized methods have
-            print(f"  {name}: (!) {slots['caution']}")
-    print(f"\nchord peaks ({force}, tension +; load across the member)")
+        if "caution" in slots and not design:  # e.g. a transfer strut that only the idealized methods have
+            cautions.append(f"  {name}: (!) {slots['caution']}")
+            continue
+        if not design:
+            continue
+        if _nil_line(name, slots, with_walls):
+            left_out.append(name)
+            continue
+        rule = (slots.get("overstrength") or {}).get("governs", "").split(":")[0]  # "item 2", "Exception 1"…
+        omega_cells = (force_text(omega["value"], force),
+                       sense(omega, slots.get("with_overstrength_tension"), slots.get("with_overstrength_compression")),
+                       governs(omega) + (f", {rule}" if rule else "")) if omega else ("", "", "")
+        basis = slots.get("collector_in_model") or (
+            "" if name not in grid or "semirigid" not in doc["assumptions"]  # e.g. a transfer collector
+            else "none" if name in with_walls else "no walls on it")
+        rows.add_row(name, force_text(design["value"], force),
+                     sense(design, slots.get("tension"), slots.get("compression")), governs(design),
+                     *omega_cells, basis + ("  (!) no collector bar in the model" if "caution" in slots else ""))
+    console.print(f"\ncollector forces ({force}): design envelope, and with overstrength per ASCE 7-16 §12.10.2.1 "
+                  "(Ω0 on seismic cases, with the item or exception of §12.10.2.1 that governs; Exception 1: the cap at "
+                  "Eq. 12.10-3); the two may come from different cases. In model: the collector in the semi-rigid model (declared member, outline chord, "
+                  "implied, none, or no walls on the line; blank when it did not run)")
+    if rows.row_count:
+        console.print(rows)
+    for line in cautions:
+        console.print(line)
+    if left_out:
+        console.print(f"  {len(left_out)} line(s) without walls and without collector force left out: "
+                      f"{', '.join(left_out)}")
+
+
+def _nil_line(name: str, slots: dict, with_walls: set[str]) -> bool:
+    """A collector entry with nothing to design: no walls on the line, no caution, and its
+    design and Ω0 values 0.00 as printed."""
+    values = [slots.get(key) for key in ("design", "with_overstrength")]
+    return (name not in with_walls and "caution" not in slots
+            and all(g is None or abs(g["value"]) < 0.005 for g in values))
+
+
+def _print_chords(doc: dict, envelope: dict, console) -> None:
+    force = doc["units"]["force"]
+    console.print(f"\nchord forces ({force}; load across the member)")
+    rows = table(console, "member", ("design", "right"), "", "governs")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
-            label = slots.get("part") or slots.get("member", name)
-            print(f"  {label.ljust(14)}{design['value']:11.2f}  ({design['assumption']} {design['case']})")
-    _print_walls_along_chords(doc)
-    drift = doc.get("drift")
-    if drift:
-        print(f"\nstory drift ({drift['clause']}; {units['displacement']})")
-        for group in ("walls", "lines"):
-            for name, c in drift[group].items():
-                print(f"  {group[:-1]} {name}: δxe {c['elastic']:.3f}, δx {c['amplified']:.3f}, δx/h {c['ratio']:.4f} "
-                      f"{'≤' if c['ok'] else '>'} {c['allowable']:g}  ({c['assumption']} {c['case']})"
-                      + ("" if c["ok"] else "   (!) exceeds the allowable drift"))
-    chosen = doc.get("engineer_envelope")
-    if chosen:
-        print(f"\n{chosen['label']} ({force})")
-        for group in ("walls", "collectors", "chords"):
-            cells = [f"{name} {slots['design']['value']:.2f} ({slots['design']['assumption']} {slots['design']['case']})"
-                     for name, slots in chosen.get(group, {}).items() if slots.get("design")]
-            if cells:
-                print(f"  {group}: " + "; ".join(cells))
-    print(f"\nresults written to {out}/")
-    print(CAUTION)
+            rows.add_row(slots.get("part") or slots.get("member", name), force_text(design["value"], force),
+                         sense(design, slots.get("tension"), slots.get("compression")), governs(design))
+    console.print(rows)
 
 
-def _print_irregularities(doc: dict) -> None:
+def _print_irregularities(doc: dict, console=None) -> None:
     """ASCE 7-16 Table 12.3-1 checks: found ones with their consequence, the rest in a line each."""
     items = doc.get("irregularities") or []
     if not items:
         return
+    say = (console or make_console()).print
     d = doc["units"]["displacement"]
     applied = doc.get("irregularity_consequences_applied") or []
-    print("\nhorizontal irregularities (ASCE 7-16 Table 12.3-1; "
-          + ("applied: " + "; ".join(applied) if applied else "no consequence applied to the forces: §12.8.4.3 "
-             "and §12.3.3.4 apply only where a load states sdc C–F / D–F and the irregularity is present")
-          + ")")
+    say("\nhorizontal irregularities (ASCE 7-16 Table 12.3-1; "
+        + ("applied: " + "; ".join(applied) if applied else "no consequence applied to the forces: §12.8.4.3 "
+           "and §12.3.3.4 apply only where a load states sdc C–F / D–F and the irregularity is present")
+        + ")")
     for item in items:
         v = item["values"]
         where = " ".join(filter(None, [item.get("method"), item.get("load") and f"load {item['load']}",
@@ -417,58 +492,73 @@ def _print_irregularities(doc: dict) -> None:
         head = f"  Type {item['type']} {item['name']}" + (f" [{where}]" if where else "")
         if "delta_max" in v:
             ratio = "unbounded (δavg ≤ 0)" if v["ratio"] is None else f"{v['ratio']:.3f}"
-            head += f": δmax/δavg = {ratio} ({v['delta_max']:.4g}/{v['delta_avg']:.4g} {d}, {v['case']})"
+            head += f": δmax/δavg = {ratio} ({v['delta_max']:.4g} {d} / {v['delta_avg']:.4g} {d}, {v['case']})"
         elif "share_x" in v:
             head += f": projections {100 * v['share_x']:.1f} % / {100 * v['share_y']:.1f} % of the plan dimensions"
         elif "open_area" in v:
             head += f": open area {100 * v['ratio']:.1f} % of the gross enclosed area"
         state = {True: "PRESENT", False: "not present", None: "not checked"}[item["present"]]
-        print(f"{head} — {state}")
+        say(f"{head} — {state}")
         if item["present"] is None:
-            print(f"    {item['consequence']}")
+            say(f"    {item['consequence']}")
         elif item["present"] is False:
             continue
         elif item["applies"] is False:
-            print(f"    does not apply: {item['consequence']}")
+            say(f"    does not apply: {item['consequence']}")
         else:
             sections = ", ".join(x if x.startswith("Table") else f"§{x}" for x in item["sections"])
             text = (f"    applies: {sections}" if item["applies"] else
                     f"    no sdc given; by SDC Table 12.3-1 refers to {sections}")
-            print(text + (f"; Ax = {v['Ax']:.3f} on the ±ecc cases" if "Ax" in v and "12.8.4.3" in item["sections"]
-                          else "") + " (see results.json or the report)")
+            say(text + (f"; Ax = {v['Ax']:.3f} on the ±ecc cases" if "Ax" in v and "12.8.4.3" in item["sections"]
+                        else "") + " (see results.json or the report)")
 
 
-def _print_walls_along_chords(doc: dict) -> None:
-    """Walls along chord lines: the chord force they take over in the semi-rigid model."""
+def _print_walls_along_chords(doc: dict, console) -> None:
+    """Walls along chord lines: the chord force they take over in the semi-rigid model, the
+    governing case per chord edge and per line (every case is in results.json)."""
     cases = doc["assumptions"].get("semirigid", {}).get("cases", {})
     if not cases:
         return
     force, position = doc["units"]["force"], doc["units"]["position"]
-    print(f"\nwalls along chord lines (semi-rigid, {force}): force that walls on a chord edge take out of the chord "
-          "(self-equilibrating, from chord elongation), against M/d of the beam analogy from the same case's wall "
-          "forces; shown from 5 % of M/d")
-    shown = False
+    console.print(f"\nwalls along chord lines (semi-rigid, {force}): force that walls on a chord edge take out of the "
+                  "chord (self-equilibrating, from chord elongation), against M/d of the beam analogy from the same "
+                  "case's wall forces; per chord and per line the case where the walls take the most, shown from "
+                  "5 % of M/d or 1 % of the case's force; every case in results.json "
+                  "(assumptions.semirigid.cases.*.walls_along_chords)")
+    edges: dict[str, tuple[str, dict]] = {}
+    lines: dict[str, tuple[str, dict, list]] = {}
     for case_name, case in cases.items():
         info = case.get("walls_along_chords") or {"lines": {}, "chords": {}}
         for edge, c in info["chords"].items():
-            if abs(c["walls_share"]) < 0.05:
-                continue
-            shown = True
-            print(f"  {case_name} {edge} at {c['at']:.4g} {position}: walls take {c['walls_force']:.2f} of "
-                  f"M/d {c['M_over_d']:.2f} ({100 * c['walls_share']:.0f} %); chord N {c['chord_force']:.2f}")
+            if abs(c["walls_share"]) >= 0.05 and (edge not in edges
+                                                  or abs(c["walls_force"]) > abs(edges[edge][1]["walls_force"])):
+                edges[edge] = (case_name, c)
         threshold = 0.01 * abs(case["applied_force"])
-        lines = [(name, item) for name, item in info["lines"].items() if abs(item["restraint_force"]) >= threshold]
-        if lines:
-            shown = True
-            name, item = max(lines, key=lambda pair: abs(pair[1]["restraint_force"]))
-            text = (f"  {case_name}: walls on line {name} take {item['restraint_force']:.2f} from chord elongation "
-                    f"(at {item['at']:.4g} {position})")
-            wall, value = max(((w, f) for _, i in lines for w, f in i["self_equilibrating"].items()), key=lambda p: abs(p[1]))
-            if abs(value) >= threshold:
-                text += f"; largest such force in one wall: {wall} {value:.2f}"
-            print(text)
-    if not shown:
-        print("  none above 5 % of M/d or 1 % of the applied force")
+        for name, item in info["lines"].items():
+            if abs(item["restraint_force"]) >= threshold and (
+                    name not in lines or abs(item["restraint_force"]) > abs(lines[name][1]["restraint_force"])):
+                largest = max(item["self_equilibrating"].items(), key=lambda p: abs(p[1]), default=None)
+                lines[name] = (case_name, item, [largest] if largest and abs(largest[1]) >= threshold else [])
+    if not edges and not lines:
+        console.print("  none above 5 % of M/d or 1 % of the applied force")
+        return
+    if edges:
+        chords = (doc.get("envelope") or {}).get("chords", {})
+        rows = table(console, "chord", ("at", "right"), ("walls take", "right"), ("of M/d", "right"), "",
+                     ("share", "right"), ("chord force", "right"), "", "case")
+        for edge, (case_name, c) in edges.items():
+            named = (chords.get(edge) or {}).get("part") or (chords.get(edge) or {}).get("member") or edge
+            rows.add_row(named, f"{c['at']:.4g} {position}", force_text(c["walls_force"], force),
+                         force_text(c["M_over_d"], force), sense({"value": c["M_over_d"]}, None, None),
+                         f"{100 * c['walls_share']:.0f} %", force_text(c["chord_force"], force),
+                         sense({"value": c["chord_force"]}, None, None), case_name)
+        console.print(rows)
+    if lines:
+        rows = table(console, "line", ("at", "right"), ("walls take", "right"), "largest in one wall", "case")
+        for name, (case_name, item, largest) in lines.items():
+            rows.add_row(name, f"{item['at']:.4g} {position}", force_text(item["restraint_force"], force),
+                         " ".join(f"{w} {force_text(f, force)}" for w, f in largest), case_name)
+        console.print(rows)
 
 
 if __name__ == "__main__":

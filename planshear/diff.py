@@ -264,8 +264,14 @@ def _cell(value) -> str:
     return str(value)
 
 
-def format_table(comparison: Comparison, show_all: bool = False) -> str:
-    """The terminal table: reported rows (failures and verdict changes first)."""
+def format_table(comparison: Comparison, show_all: bool = False, width: int | None = None) -> str:
+    """The terminal table as text: reported rows (failures and verdict changes first),
+    laid out by rich (planshear.terminal) to ``width`` columns (default: wide enough that no
+    row wraps)."""
+    import io
+
+    from .terminal import make_console, table
+
     c = comparison
     head = [f"RUN_A: {c.run_a} ({c.plan_a})", f"RUN_B: {c.run_b} ({c.plan_b})",
             f"threshold: changed when |B - A| > {c.absolute:g} {c.units['force']} and > {100 * c.relative:g} % of "
@@ -275,15 +281,20 @@ def format_table(comparison: Comparison, show_all: bool = False) -> str:
     rows = c.rows if show_all else c.reported
     if not rows:
         return "\n".join(head + [f"no changes above the threshold ({len(c.rows)} items compared)"])
-    table = [("status", "item", "quantity", "A", "B", "change", "%", "governs A -> B")]
+    text = io.StringIO()
+    console = make_console(text)
+    if width is not None:
+        console.width = width
+    grid = table(console, "status", "item", "quantity", ("A", "right"), ("B", "right"), ("change", "right"),
+                 ("%", "right"), "governs A -> B", fit=width is not None)
     for r in rows:
         unit = f" [{r.unit}]" if r.unit else ""
-        table.append((r.status, f"{r.group} {r.item}", r.quantity + unit, _cell(r.a), _cell(r.b),
-                      "" if r.delta is None else f"{r.delta:+.3f}",
-                      "" if r.relative is None else f"{100 * r.relative:.1f}",
-                      f"{r.governs_a} -> {r.governs_b}" if (r.governs_a or r.governs_b) else ""))
-    widths = [min(60, max(len(row[i]) for row in table)) for i in range(len(table[0]))]
-    lines = ["  ".join(cell[:60].ljust(w) for cell, w in zip(row, widths, strict=True)).rstrip() for row in table]
+        grid.add_row(r.status, f"{r.group} {r.item}", r.quantity + unit, _cell(r.a), _cell(r.b),
+                     "" if r.delta is None else f"{r.delta:+.3f}",
+                     "" if r.relative is None else f"{100 * r.relative:.1f}",
+                     f"{r.governs_a} -> {r.governs_b}" if (r.governs_a or r.governs_b) else "")
+    console.print(grid)
+    lines = [line.rstrip() for line in text.getvalue().splitlines()]
     summary = {s: sum(1 for r in c.rows if r.status == s) for s in _ORDER}
     tail = ", ".join(f"{n} {s}" for s, n in summary.items() if n)
     return "\n".join(head + [""] + lines + ["", f"{len(c.rows)} items compared: {tail}"])
