@@ -464,7 +464,7 @@ def _nil_line(name: str, slots: dict, with_walls: set[str]) -> bool:
 def _print_chords(doc: dict, envelope: dict, console) -> None:
     force = doc["units"]["force"]
     console.print(f"\nchord forces ({force}; load across the member)")
-    rows = table(console, "member", ("design", "right"), "", "governs")
+    rows = table(console, "chord", ("design", "right"), "", "governs")
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:

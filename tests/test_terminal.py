@@ -86,7 +86,7 @@ def test_design_values_are_magnitude_sense_and_case(piped_demo):
         word = ("tension or compression" if t and c and abs(t["value"] + c["value"]) < 1e-9 * abs(g["value"])
                 else "tension" if g["value"] > 0 else "compression")
         assert re.search(rf"{abs(g['value']):.2f} {force}\s+{word}\s+{g['assumption']} {re.escape(g['case'])}",
-                         chords[slots.get("member", name)])
+                         chords[slots.get("part") or slots.get("member", name)])
 
 
 def test_line_4_overstrength_comes_from_the_seismic_case(piped_demo):
