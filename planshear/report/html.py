@@ -1,108 +1,85 @@
 """report.html: the report's sections as one self-contained page (figures inline),
-with ``@page`` CSS for printing."""
+with ``@page`` CSS for printing.
+
+The page is a Jinja2 template (``templates/report.html``, its blocks in
+``templates/blocks.html``, the style sheet in ``templates/report.css``) with
+autoescaping on: this module only prepares what the template cannot read itself (the
+figure files) and the filters that format a cell."""
 
 from __future__ import annotations
 
 import base64
-import html
+import functools
 from pathlib import Path
+
+import jinja2
+from markupsafe import Markup
 
 from .content import PAGE_SIZES, FigureSpec, Report, Table
 from .tables import _plain
 
-__all__ = ["write_html"]
+__all__ = ["write_html", "environment"]
 
 
-def _esc(value) -> str:
-    return html.escape(str(value))
+def _cell(value) -> str:
+    """A table cell's text: numbers to 6 significant digits, a missing value as "–"."""
+    return _plain(value, missing="–")
 
 
+def _is_number(value) -> bool:
+    """A numeric cell (right-aligned); booleans are text ("yes"/"no")."""
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
 
-def _num(value) -> str:
-    """A table cell for HTML."""
-    return _esc(_plain(value, missing="–"))
+
+def _css_string(text) -> Markup:
+    """``text`` inside a single-quoted CSS string in a <style> element, where HTML
+    escapes are not read: backslash and quote escaped, and "<" and line breaks as CSS
+    escapes so that nothing can end the element."""
+    text = str(text).replace("\\", "\\\\").replace("'", "\\'")
+    return Markup(text.replace("<", "\\3c ").replace("\n", "\\a "))
 
 
-def _table(headers: list[str], rows: list[list], cls: str = "") -> str:
-    head = "".join(f"<th>{_esc(h)}</th>" for h in headers)
-    def cell(value) -> str:
-        numeric = isinstance(value, (int, float)) and not isinstance(value, bool)
-        return f"<td>{_num(value)}</td>" if numeric else f'<td class="text">{_num(value)}</td>'
+@functools.cache
+def environment() -> jinja2.Environment:
+    """The template environment (made once per process): templates from the package,
+    autoescape on, an undefined name an error rather than blank text."""
+    env = jinja2.Environment(loader=jinja2.PackageLoader("planshear.report", "templates"), autoescape=True,
+                             undefined=jinja2.StrictUndefined, trim_blocks=True, lstrip_blocks=True,
+                             keep_trailing_newline=True)
+    env.filters["cell"] = _cell
+    env.filters["css_string"] = _css_string
+    env.tests["table"] = lambda block: isinstance(block, Table)
+    env.tests["figure"] = lambda block: isinstance(block, FigureSpec)
+    env.tests["number_cell"] = _is_number
+    return env
 
-    body = "".join("<tr>" + "".join(cell(c) for c in row) + "</tr>" for row in rows)
-    return f'<table class="{cls}"><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>'
+
+def _inline_figure(spec: FigureSpec, figures_dir: Path, sizes: dict) -> dict:
+    """What the template shows for a drawn figure: the SVG text (``svg``) where a vector
+    copy was drawn, else the PNG as base64 (``png``) and its width in inches."""
+    svg_path = figures_dir / f"{spec.name}.svg"
+    if spec.svg and svg_path.exists():
+        svg = svg_path.read_text(encoding="utf-8")
+        svg = svg[svg.index("<svg"):]  # drop the XML prolog and doctype for inlining
+        start, end = svg.find("<metadata>"), svg.find("</metadata>")
+        if start >= 0 and end > start:
+            svg = svg[:start] + svg[end + len("</metadata>"):]
+        return {"svg": Markup(svg), "png": None, "width": None}  # our own matplotlib output
+    data = base64.b64encode((figures_dir / f"{spec.name}.png").read_bytes()).decode("ascii")
+    # The base64 alphabet has nothing to escape; escaping megabytes of it anyway was two
+    # thirds of the page's writing time with --figures all.
+    return {"svg": None, "png": Markup(data), "width": sizes[spec.name][0]}
 
 
 def write_html(path: Path, report: Report, figures_dir: Path, sizes: dict, page_size: str = "letter") -> None:
     """The HTML report: title block, caution, sections; figures inline (SVG where drawn,
-    else PNG); ``@page`` for printing with "page n of m"."""
-    def figure(spec: FigureSpec) -> str:
-        if spec.name not in sizes:
-            return ""
-        svg_path = figures_dir / f"{spec.name}.svg"
-        if spec.svg and svg_path.exists():
-            svg = svg_path.read_text(encoding="utf-8")
-            svg = svg[svg.index("<svg"):]  # drop the XML prolog and doctype for inlining
-            start, end = svg.find("<metadata>"), svg.find("</metadata>")
-            if start >= 0 and end > start:
-                svg = svg[:start] + svg[end + len("</metadata>"):]
-            body = svg
-        else:
-            data = base64.b64encode((figures_dir / f"{spec.name}.png").read_bytes()).decode("ascii")
-            width = sizes[spec.name][0]
-            body = (f'<img alt="{_esc(spec.title)}" style="max-width:{width:.2f}in" '
-                    f'src="data:image/png;base64,{data}">')
-        return f"<figure>{body}<figcaption>{_esc(spec.title)}</figcaption></figure>"
-
-    def block(item) -> str:
-        if isinstance(item, Table):
-            return f'<div class="scroll">{_table(item.headers, item.rows, item.key)}</div>'
-        if isinstance(item, FigureSpec):
-            return figure(item)
-        return f"<p>{_esc(item)}</p>"
-
+    else PNG; ``sizes``: name → (width, height) in inches of the figures drawn);
+    ``@page`` for printing on ``page_size`` paper with "page n of m"."""
+    inline = {spec.name: _inline_figure(spec, figures_dir, sizes)
+              for section in report.sections for spec in section.blocks
+              if isinstance(spec, FigureSpec) and spec.name in sizes}
     tb = report.title_block
-    cells = "".join(f"<td><small>{_esc(label)}</small>{_esc(value) or '&nbsp;'}</td>" for label, value in tb.fields())
-    width, height = PAGE_SIZES[page_size]
-    css = _CSS + (f"@page{{size:{width}in {height}in;margin:.6in .55in .75in;"
-                  f"@bottom-left{{content:'{_css_text(tb.job or tb.plan_name)} · {_css_text(tb.plan_file)} · "
-                  f"rev {_css_text(tb.revision or '-')} · {_css_text(tb.date)}';font-size:8pt}}"
-                  "@bottom-right{content:'page ' counter(page) ' of ' counter(pages);font-size:8pt}}")
-    parts = [
-        "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\">",
-        f"<title>planshear report: {_esc(tb.plan_name)}</title><style>{css}</style></head><body>",
-        f'<table class="titleblock"><tr>{cells}<td class="pages"><small>page</small>1 of 1 (screen)</td></tr></table>',
-        f"<h1>{_esc(report.title)}</h1>",
-        f'<p class="caution">{_esc(report.caution)}</p>',
-    ]
-    for section in report.sections:
-        parts.append(f"<section><h2>{_esc(section.title)}</h2>" + "".join(block(b) for b in section.blocks)
-                     + "</section>")
-    parts += [f'<p class="caution">{_esc(report.caution)}</p>', "</body></html>"]
-    path.write_text("\n".join(parts), encoding="utf-8")
-
-
-def _css_text(text: str) -> str:
-    return text.replace("\\", "\\\\").replace("'", "\\'")
-
-
-_CSS = """
-body{font-family:Georgia,'DejaVu Serif',serif;color:#222;background:#fbfaf6;max-width:62rem;margin:1rem auto;padding:0 1rem;line-height:1.4}
-h1{font-size:1.6rem;border-bottom:3px double #222;padding-bottom:.3rem}
-h2{font-size:1.15rem;margin-top:2rem;border-bottom:1px solid #999}
-.scroll{overflow-x:auto}
-table{border-collapse:collapse;font-size:.8rem;margin:.5rem 0 1rem;font-family:'DejaVu Sans Mono',monospace}
-th,td{border:1px solid #aaa;padding:.15rem .4rem;text-align:right;vertical-align:top}
-th{background:#ece8dc}
-td.text,th{white-space:normal;overflow-wrap:break-word;max-width:24rem}
-td:first-child,th:first-child,td.text{text-align:left}
-table.titleblock{width:100%;font-family:'DejaVu Sans',sans-serif;border:2px solid #1f6f8b;border-left:8px solid #1f6f8b}
-table.titleblock td{text-align:left;border:1px solid #9fb9c3;background:#fff;padding:.2rem .5rem}
-table.titleblock small{display:block;font-size:.62rem;text-transform:uppercase;letter-spacing:.06em;color:#5a6b70}
-.caution{border:2px solid #222;padding:.6rem 1rem;background:#fff;font-weight:bold}
-figure{margin:1rem 0;page-break-inside:avoid}
-figure svg,figure img{width:100%;height:auto}
-figcaption{font-size:.8rem;font-style:italic}
-@media print{body{background:#fff;max-width:none;margin:0}h2{page-break-after:avoid}.scroll{overflow:visible}
-table{font-size:6.5pt}td.pages{display:none}}
-"""
+    footer = f"{tb.job or tb.plan_name} · {tb.plan_file} · rev {tb.revision or '-'} · {tb.date}"
+    text = environment().get_template("report.html").render(report=report, inline=inline, footer=footer,
+                                                             page=PAGE_SIZES[page_size])
+    path.write_text(text, encoding="utf-8")
