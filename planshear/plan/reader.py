@@ -23,12 +23,12 @@ import numpy as np
 import shapely
 from shapely.geometry import LineString, Point, Polygon
 
-from .code import DEFAULT_EDITION, EDITIONS
-from .code.asce7_16 import SDCS, ElfDistribution, elf_distribution_12_8_3
-from .errors import PlanError, UnstablePlanError
-from .schema import placeholder_problems, schema_problems
-from .stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
-from .units import (
+from ..code import DEFAULT_EDITION, EDITIONS
+from ..code.asce7_16 import SDCS, ElfDistribution, elf_distribution_12_8_3
+from ..errors import PlanError, UnstablePlanError
+from ..schema import placeholder_problems, schema_problems
+from ..stiffness import WallStiffness, direct_stiffness, pier_stiffness, wood_wall_stiffness
+from ..units import (
     AREA_LOAD,
     FORCE,
     LENGTH,
