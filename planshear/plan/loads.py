@@ -129,7 +129,8 @@ class _Weights:
     footprints: list[Polygon]  # where each point weight acts
 
     @property
-    def none(self) -> bool:
+    def is_empty(self) -> bool:
+        """No weight of any kind (the load would have no force)."""
         return self.area == 0 and not self.zones and not self.lines and not self.points and not self.edges
 
 
@@ -223,7 +224,7 @@ def _seismic_load(ctx: Context, entry: dict, where: str, directions: tuple[str, 
         return None
     if weights.area is None or ecc is None or omega is None or (has_total and total is None):
         return None
-    if weights.none:
+    if weights.is_empty:
         ctx.problem(where, 'has no seismic weight; give "area_weight" (e.g. "20 psf") and/or line and point weights')
         return None
     if weights.area == 0 and not weights.zones and not weights.points:
