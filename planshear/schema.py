@@ -241,7 +241,7 @@ PLAN_SCHEMA: dict = {
                         "type": "object",
                         "required": ["SDS", "Ie"],
                         # "ratio" is the old name of story_force_ratio: accepted here so that
-                        # plan.py can give the rename as the fix.
+                        # the plan reader (plan/loads.py) can give the rename as the fix.
                         "properties": {"SDS": NUMBER, "Ie": NUMBER, "story_force_ratio": NUMBER, "ratio": NUMBER},
                         "additionalProperties": False,
                     },
