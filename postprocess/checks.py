@@ -230,7 +230,7 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
         demand = abs(governing.value)
         if kind == "unit_shear":
             checks.append(Check("wall", f"wall {wall_id}", "unit shear", demand / wall.length, capacity, governing,
-                                f"design force / wall length {wall.length:.6g} m"))
+                                f"design force / wall length {wall.length / plan.length_scale:.6g} {plan.length_unit}"))
         else:
             checks.append(Check("wall", f"wall {wall_id}", "force", demand, capacity, governing))
         places[f"wall {wall_id}"] = shapely.LineString([wall.start, wall.end])
