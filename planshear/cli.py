@@ -315,7 +315,8 @@ def _print_checks(doc: dict, console) -> None:
         return
     failures = checks["failures"]
     say(f"\ndesign checks ({checks['basis']}; D/C = demand / capacity): "
-        + (f"{failures} FAIL" if failures else "all checks with a capacity pass"))
+        + (f"{failures} FAIL on {checks.get('failing_items', failures)} item(s)" if failures
+           else "all checks with a capacity pass"))
     rows = table(console, "status", ("D/C", "right"), "item", "quantity", ("demand", "right"), ("capacity", "right"),
                  "governs")
     for c in checks["items"]:
@@ -509,8 +510,11 @@ def _print_irregularities(doc: dict, console=None) -> None:
             sections = ", ".join(x if x.startswith("Table") else f"§{x}" for x in item["sections"])
             text = (f"    applies: {sections}" if item["applies"] else
                     f"    no sdc given; by SDC Table 12.3-1 refers to {sections}")
-            say(text + (f"; Ax = {v['Ax']:.3f} on the ±ecc cases" if "Ax" in v and "12.8.4.3" in item["sections"]
-                        else "") + " (see results.json or the report)")
+            ax = ""
+            if "Ax" in v and "12.8.4.3" in item["sections"]:
+                ax = (f"; Ax = {v['Ax']:.3f} applied to the ±ecc cases" if item["applies"] else
+                      f"; Ax would be {v['Ax']:.3f} (not applied: no sdc given)")
+            say(text + ax + " (see results.json or the report)")
 
 
 def _print_walls_along_chords(doc: dict, console) -> None:

@@ -508,6 +508,7 @@ def checks_to_json(checks, units: OutputUnits) -> dict | None:
         "basis": checks.basis or "unfactored (no [design] basis)",
         "rule": "D/C = design demand / capacity on the design basis; above 1 fails",
         "failures": len(checks.failures),
+        "failing_items": len({c.item for c in checks.failures}),
         "items": items,
     }
 

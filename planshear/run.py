@@ -231,7 +231,7 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
     engineer = None
     if plan.design_envelope:
         engineer = build_envelope(enveloped, cases, classification, chosen=plan.design_envelope, layout=layout)
-    drift = tuple(drift_checks(plan, methods, cases, run))
+    drift = tuple(drift_checks(plan, methods, cases, run, allowed=envelope.allowed))
     # ASCE 7-16 §12.3.3.4: SDC D–F with a Type 1a, 1b, 2 or 3 irregularity present.
     triggering = [i for i in irregularities if i.present and i.applies and any("12.3.3.4" in s for s in i.sections)]
     applied = ()
@@ -240,8 +240,11 @@ def analyze(plan: Plan, semirigid: bool = True, progress: Callable[[str], None] 
         envelope = with_irregularity_increase(envelope, INCREASE_12_3_3_4, reason)
         if engineer is not None:
             engineer = with_irregularity_increase(engineer, INCREASE_12_3_3_4, reason)
-        applied = (f"{reason}: collector design forces × {INCREASE_12_3_3_4:g} (overstrength values that include Ω0 "
-                   "unchanged); diaphragm-to-wall and diaphragm-to-collector connections need the same increase "
+        applied = (f"{reason}: collector design forces × {INCREASE_12_3_3_4:g}; of the §12.10.2.1 values, those "
+                   "that include Ω0 are unchanged (the exception of §12.3.3.4) and those set by the Exception 1 cap "
+                   "(the Eq. 12.10-3 force with the basic combinations, no Ω0) or by item 3 are × "
+                   f"{INCREASE_12_3_3_4:g} too (see each collector's overstrength.increase_12_3_3_4); "
+                   "diaphragm-to-wall and diaphragm-to-collector connections need the same increase "
                    "(not computed by planshear)",)
     applied += tuple(f"§12.8.4.3: accidental eccentricity of load {load} along {axis} × Ax = {ax:.3f} (torsional "
                      "irregularity; all ±ecc cases of the rigid and semi-rigid assumptions)"
@@ -393,9 +396,10 @@ def drift_to_json(checks: tuple[DriftCheck, ...], units: OutputUnits) -> dict | 
 
     return {
         "clause": "ASCE 7-16 §12.8.6 (Eq. 12.8-15, δx = Cd·δxe/Ie), §12.12.1 and Table 12.12-1 (allowable as given)",
-        "note": "walls: elastic drifts at the story force Fx where the load gives fx, else at the case force; "
-                "lines: the diaphragm's largest displacement on the line in the semi-rigid model at the case force "
-                "(§12.12.4)",
+        "note": "walls: elastic drifts at the story force Fx where the load gives fx, else at the case force, under "
+                "the assumptions the code allows for the load direction (as the design envelope); lines: the "
+                "diaphragm's largest displacement on the line in the semi-rigid model at the case force (the walls' "
+                "drift plus the diaphragm's own deflection; what elements attached there must follow, §12.12.2)",
         "walls": {c.name: entry(c) for c in checks if c.kind == "wall"},
         "lines": {c.name: entry(c) for c in checks if c.kind == "line"},
     }

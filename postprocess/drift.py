@@ -3,7 +3,8 @@
 For every seismic load that gives ``drift = { Cd, story_height, allowable }``: each wall's
 elastic drift (force / stiffness) under every assumption and case, and in the semi-rigid
 model the diaphragm's largest displacement along the load on every grid line parallel to
-the load (what elements on that line must follow, §12.12.4), amplified by Cd/Ie and
+the load (the walls' drift plus the diaphragm's own deflection there: what elements on that
+line must follow, §12.12.2), amplified by Cd/Ie and
 compared with the allowable drift ratio × story height. The elastic values come from the
 case force scaled to the story force Fx for the walls where the load gives ``fx``; the
 diaphragm's displacement on the lines stays at the case force (Fpx or the given total).
@@ -43,9 +44,12 @@ class DriftCheck:
         return drift_within_limit_12_12_1(self.amplified, self.story_height, self.allowable)
 
 
-def drift_checks(plan: Plan, methods: dict, cases: tuple[LoadCase, ...] | list[LoadCase], semirigid=None) -> list[DriftCheck]:
-    """The governing (largest ratio) check per wall and per line over all assumptions and
-    cases of the loads that give drift inputs; ``semirigid`` is the SemirigidRun (or None)."""
+def drift_checks(plan: Plan, methods: dict, cases: tuple[LoadCase, ...] | list[LoadCase], semirigid=None,
+                 allowed: dict[str, tuple[str, ...]] | None = None) -> list[DriftCheck]:
+    """The governing (largest ratio) check per wall and per line over the cases of the loads
+    that give drift inputs and the assumptions ``allowed`` for each case's direction (axis →
+    assumption names, as the design envelope uses them; None: every assumption);
+    ``semirigid`` is the SemirigidRun (or None)."""
     loads = {ld.name: ld for ld in plan.loads if ld.drift is not None}
     if not loads:
         return []
@@ -62,6 +66,8 @@ def drift_checks(plan: Plan, methods: dict, cases: tuple[LoadCase, ...] | list[L
             case = by_name[case_name]
             if case.load not in loads:
                 continue
+            if allowed is not None and assumption not in allowed.get(case.axis, ()):
+                continue  # an assumption the code does not allow for this direction
             Cd, Ie, height, allowable = loads[case.load].drift
             for wall_id, drift in ((w, d * case.wall_factor) for w, d in result.wall_drifts.items()):
                 keep(DriftCheck("wall", wall_id, assumption, case_name, drift,

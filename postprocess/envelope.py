@@ -246,9 +246,11 @@ def build_envelope(
 
 def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -> Envelope:
     """The envelope with ASCE 7-16 §12.3.3.4 applied: collector design values (design,
-    tension, compression) × ``factor``, and their §12.10.2.1 values too where those do not
-    include Ω0 (item 3, the Exception 1 cap, no overstrength). ``reason`` names the
-    irregularities; it is recorded with each collector's rule."""
+    tension, compression, and the largest of all assumptions) × ``factor``, and their
+    §12.10.2.1 values too where those do not include Ω0 (item 3; the Exception 1 cap, a force
+    from Eq. 12.10-3 with the basic combinations; no overstrength): the exception of
+    §12.3.3.4 names forces calculated with the overstrength factor, which these are not.
+    ``reason`` names the irregularities; it is recorded with each collector's rule."""
     def scaled(g: Governing | None) -> Governing | None:
         return None if g is None else Governing(factor * g.value, g.assumption, g.case, g.factor)
 
@@ -257,7 +259,7 @@ def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -
         rule = dict(envelope.collector_rules.get(name, {}))
         with_omega = collector_increase_applies_12_3_3_4(rule.get("governs", "no overstrength"))
         collectors[name] = {
-            key: (scaled(value) if key in ("design", "tension", "compression")
+            key: (scaled(value) if key in ("design", "tension", "compression", "information")
                   or (key.startswith("with_overstrength") and with_omega) else value)
             for key, value in slots.items()
         }
@@ -265,7 +267,9 @@ def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -
             if with_omega:
                 rule["without_cap"] *= factor
                 rule["cap"] = None if rule["cap"] is None else rule["cap"] * factor
-            rule["increase_12_3_3_4"] = (f"× {factor:g} ({reason})" if with_omega else
+            rule["increase_12_3_3_4"] = (f"× {factor:g} ({reason}; this §12.10.2.1 value does not include Ω0 "
+                                         f"({rule.get('governs', '')}), so §12.3.3.4's exception for forces with "
+                                         "overstrength does not apply)" if with_omega else
                                          f"× {factor:g} on the design value only; the overstrength value includes Ω0")
             rules[name] = rule
     return replace(envelope, collectors=collectors, collector_rules=rules)

@@ -268,3 +268,14 @@ def test_splices_of_the_plan_reach_results_json(plan_from):
     assert entry["at"] == pytest.approx([25.0, 0.0])
     assert entry["tension"]["value"] == pytest.approx(18.75, rel=1e-6)
     assert entry["compression"]["value"] == pytest.approx(-18.75, rel=1e-6)
+
+
+def test_failures_counted_as_checks_and_as_items(plan_from):
+    """A member whose tension and compression both exceed their capacities (T = C = M/d =
+    25 k, Taly 2010 Eq. 4.132, against 20 k each) is two failing checks on one item;
+    results.json says both counts, so a reader is not told of two failing members."""
+    extra = '[capacity]\nmember = [{ line = "A", tension = "20 kip", compression = "20 kip" }]\n'
+    doc = analyze(_plan(plan_from, extra), semirigid=False).to_json()
+    failing = [c for c in doc["checks"]["items"] if c["status"] == "fails"]
+    assert len(failing) == doc["checks"]["failures"] == 2
+    assert doc["checks"]["failing_items"] == 1

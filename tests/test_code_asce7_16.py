@@ -110,6 +110,31 @@ def test_amplified_drift_of_the_walls(plan_from):
         assert c["ok"] == (c["ratio"] <= 0.025)
 
 
+def test_drift_uses_the_assumptions_the_envelope_allows(plan_from):
+    """The drift check follows the design envelope: a wall's governing drift comes from an
+    assumption the code allows for the load direction (ASCE 7-16 §12.3.1: the diaphragm is
+    idealized only where permitted), never from one the classification excludes; with every
+    assumption run (semi-rigid included) the allowed set is smaller than all three."""
+    from planshear.run import analyze
+
+    load = textwrap.dedent('''
+        [[load]]
+        name = "E"
+        kind = "seismic"
+        area_weight = "20 psf"
+        total = "100 kip"
+        directions = ["y"]
+        eccentricity = 0
+        drift = { Cd = 4.0, Ie = 1.0, story_height = "12 ft", allowable = 0.025 }
+        ''')
+    plan = plan_from(rectangle_plan(walls=end_walls(), load=load) + "[mesh]\nsize = 10.0\n")
+    doc = analyze(plan).to_json()
+    allowed = doc["envelope"]["allowed_assumptions"]["y"]
+    assert set(allowed) < {"flexible", "rigid", "semirigid"}
+    walls = doc["drift"]["walls"]
+    assert walls and all(c["assumption"] in allowed for c in walls.values())
+
+
 def test_story_force_drives_walls_and_diaphragm_force_the_rest(plan_from):
     """A seismic load with both the diaphragm force (total = 100 kip, Fpx) and the story force
     fx = 60 kip: the analysis runs at Fpx (diaphragm shears, chords, collectors); walls,

@@ -86,8 +86,9 @@ LIMITATIONS_TEXT = [
     "The flexible method gives no force to walls on skewed lines.",
     "Peaks of unit shear at re-entrant corners and wall ends depend on the mesh (stress concentrations).",
     "Code checks are limited to the flexibility classification and the horizontal irregularities of ASCE 7-16 "
-    "Table 12.3-1 Types 1a, 1b, 2 and 3 (detected; Ax and the §12.3.3.4 collector increase applied); capacities are "
-    "not checked.",
+    "Table 12.3-1 Types 1a, 1b, 2 and 3 (detected; Ax and the §12.3.3.4 collector increase applied) and, where the "
+    "plan gives capacities, demand/capacity of zones, walls and members (the engineer's capacities, taken as given); "
+    "connections, hold-downs and the vertical elements' own design are not checked.",
 ]
 
 IRREGULARITY_TEXT = (
@@ -230,8 +231,13 @@ def build_report(doc: dict, results=None, figures: str = "all") -> Report:
                "shear; no finite-element model):", tab("span_deflection"),
                *(_span_deflection_specs(doc, results) if figures == "all" else ()))
     report.add("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", IRREGULARITY_TEXT, tab("irregularities"))
+    basis = doc["plan"].get("design_basis") or "unfactored"
     report.add("Wall forces", "Largest magnitude over the cases of each assumption; design = envelope over the "
-               "assumptions the code allows for the load direction.", tab("walls"))
+               "assumptions the code allows for the load direction. Every column is on the design basis "
+               f"({basis}: the lateral terms of its load combinations, e.g. 0.7ρ on E for ASD) and, where a seismic "
+               "load gives fx, at the story force Fx (the case force × Fx/Fpx): so they differ from the per-case "
+               "wall forces of walls.csv and from the worked spans, which are at the case force and unfactored "
+               "(the loads table gives each load's factor and Fx).", tab("walls"))
     report.add("Collectors", tab("collectors"), MEMBER_TEXT, *_member_specs(doc, "collectors"))
     report.add("Chords", tab("chords"), MEMBER_TEXT, *_member_specs(doc, "chords"))
     report.add("Unit shear along the spans", UNIT_SHEAR_TEXT,
@@ -277,7 +283,9 @@ def _design_check_sections(report: Report, doc: dict, figures: str) -> None:
     if checks:
         failures = checks["failures"]
         lead = (f"Basis: {checks['basis']}. {checks['rule']}. "
-                + (f"{failures} check(s) FAIL (listed first)." if failures else "Every check with a capacity passes."))
+                + (f"{failures} check(s) FAIL on {checks.get('failing_items', failures)} item(s) (listed first; "
+                   "tension and compression of a member are two checks)." if failures
+                   else "Every check with a capacity passes."))
         report.add("Design checks", lead, Table(*checks_table(doc), "checks"),
                    FigureSpec("dc_map", "Demand/capacity map", "dc_map_figure", {}, local=True)
                    if figures != "none" else None)

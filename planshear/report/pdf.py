@@ -46,6 +46,7 @@ SPELLED_OUT = {
     "Ω": "Omega", "δ": "delta", "Δ": "Delta", "ν": "nu", "ε": "eps", "σ": "sigma", "τ": "tau", "θ": "theta",
     "ρ": "rho", "Σ": "Sum", "ℓ": "l", "≤": "<=", "≥": ">=", "≈": "~", "−": "-", "′": "'", "→": "->", "∫": "int",
     "∩": "n", "⁻": "-", "⁺": "+", "⁴": "^4", "ᵀ": "^T", "│": "|", "─": "-", "┼": "+", "┄": "-",
+    "\u0304": "bar",  # combining macron: x̄ → xbar
 }
 #: Matplotlib settings of the PDF pages (weight "medium" is the standard fonts' normal weight).
 _RC = {"pdf.use14corefonts": True, "font.family": "sans-serif", "font.sans-serif": ["Helvetica"],

@@ -100,7 +100,8 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
         ["type", "irregularity", "method", "load", "along", "present", "measured", "applies", "consequence"],
         [[i["type"], i["name"], i.get("method", ""), i.get("load", ""), i.get("axis", ""),
           {True: "yes", False: "no", None: "not checked"}[i["present"]], _measured(i, d),
-          {True: "yes", False: "no", None: "SDC not given"}[i["applies"]], i["consequence"]]
+          ("not checked" if i["present"] is None else {True: "yes", False: "no", None: "SDC not given"}[i["applies"]]),
+          i["consequence"]]
          for i in doc.get("irregularities", [])],
     )
     envelope = doc.get("envelope") or {"walls": {}, "collectors": {}, "chords": {}}
