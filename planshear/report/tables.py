@@ -161,13 +161,16 @@ def report_tables(doc: dict) -> dict[str, tuple[list[str], list[list]]]:
     for case_name, case in doc["assumptions"].get("semirigid", {}).get("cases", {}).items():
         info = case.get("walls_along_chords") or {"lines": {}, "chords": {}}
         for edge, c in info["chords"].items():
-            rows.append([case_name, edge, c["at"], c["M_over_d"], c["chord_force"], round(100 * c["share_lost"], 1),
-                         c["walls_force"], round(100 * c["walls_share"], 1)])
+            rows.append([case_name, chord_label(edge, envelope["chords"].get(edge) or {}), c["at"], c["M_over_d"],
+                         c["chord_force"], round(100 * c["share_lost"], 1), c["walls_force"],
+                         round(100 * c["walls_share"], 1)])
         for name, item in info["lines"].items():
-            wall, value = max(item["self_equilibrating"].items(), key=lambda pair: abs(pair[1]))
+            wall, value = max(item["self_equilibrating"].items(), key=lambda pair: abs(pair[1]), default=("", 0.0))
+            if abs(value) <= 1e-9 * max(abs(item["restraint_force"]), abs(item["net_force"]), 1e-30):
+                wall, value = "none (round-off)", None  # no wall takes a self-equilibrating force
             line_rows.append([case_name, name, item["restraint_force"], item["at"], item["net_force"], wall, value])
     tables["chord_walls"] = (
-        ["case", "edge", f"at ({p})", f"M/d ({f})", f"chord N ({f})", "lost (%)", f"walls take ({f})", "walls (% of M/d)"],
+        ["case", "chord", f"at ({p})", f"M/d ({f})", f"chord N ({f})", "lost (%)", f"walls take ({f})", "walls (% of M/d)"],
         rows)
     tables["walls_across"] = (
         ["case", "line", f"force from chord elongation ({f})", f"at ({p})", f"net line force ({f})",
