@@ -228,7 +228,11 @@ def build_report(doc: dict, results=None, figures: str = "all") -> Report:
     _traced_section(report, doc)
     report.add("Flexibility (ASCE 7-16 §12.3.1)", tab("classification"),
                "The same check by beam theory on the flexible method's simple spans (chord bending and sheathing "
-               "shear; no finite-element model):", tab("span_deflection"),
+               "shear; no finite-element model), for comparison only: the verdict above is the calculated one of "
+               "§12.3.1.3, MDD from the semi-rigid model and ADVE from its walls. The two differ where the walls' "
+               "drifts, openings, re-entrant corners or continuity over supports move MDD or ADVE away from the "
+               "simple-span values; where they fall on opposite sides of 2, the engineer should see why before "
+               "relying on the flexible idealization:", tab("span_deflection"),
                *(_span_deflection_specs(doc, results) if figures == "all" else ()))
     report.add("Horizontal irregularities (ASCE 7-16 Table 12.3-1)", IRREGULARITY_TEXT, tab("irregularities"))
     basis = doc["plan"].get("design_basis") or "unfactored"
