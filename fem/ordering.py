@@ -1,0 +1,258 @@
+"""A fill-reducing symmetric ordering of our own: nested dissection by level structures.
+
+SciPy's SuperLU chooses its column ordering with a multiple minimum degree on A + Aᵀ, which
+on planshear's 2-D membrane meshes leaves both more fill and a slower factorization than a
+dissection ordering (benchmarks/RESULTS.md, "SuperLU with planshear's ordering"). This
+module computes an elimination order ``p`` for a structurally symmetric sparse matrix K so
+that ``K[p][:, p]`` factors with less work; fem/solver.py hands that matrix to SuperLU with
+its NATURAL ordering.
+
+Method (George's automatic nested dissection, A. George and J. W. H. Liu, *Computer
+Solution of Large Sparse Positive Definite Systems*, Prentice-Hall 1981, ch. 8; the
+pseudo-peripheral vertex of ch. 4 by two breadth-first sweeps):
+
+1. Compress: the unknowns of one mesh node have identical rows (closed neighbourhoods);
+   each group of identical rows becomes one vertex of a quotient graph, ordered as one.
+2. Level by level (a loop over dissection levels only, never over vertices): the connected
+   components of the vertices not yet ordered; each component no larger than the leaf size
+   is a leaf. For every larger component at once: a pseudo-peripheral vertex (two
+   breadth-first searches, all components in one call through a virtual root joined to
+   one vertex of each), the level holding the component's median vertex, and as separator
+   the vertices of that level with a neighbour in the next level. Removing it splits the
+   component in two (the levels above and below).
+3. Leaves first, then the separators from the deepest dissection level up (every
+   topological order of the separator tree gives the same fill; SuperLU postorders its
+   elimination tree itself).
+
+The result is always a permutation of ``range(n)`` whatever the graph (disconnected, empty
+rows, dense): steps that cannot split a component leave it whole as a leaf.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.csgraph import breadth_first_order, connected_components, depth_first_order
+
+__all__ = ["nested_dissection", "compress"]
+
+#: Components of at most this many compressed vertices (mesh nodes) are not dissected
+#: further. Measured on planshear's rectangle and irregular matrices at 50k–250k DOFs
+#: (benchmarks/RESULTS.md): factor times are flat within noise from 8 to 64.
+LEAF_SIZE = 8
+#: Dissection levels at most; deeper components are left whole as leaves. A 2-D mesh of a
+#: million nodes needs about 40 (each level roughly halves the largest component).
+MAX_LEVELS = 200
+
+
+def _pattern(matrix: sp.spmatrix) -> sp.csr_matrix:
+    """The symmetric sparsity pattern of ``matrix + matrixᵀ`` with the full diagonal (every
+    stored entry counts, zero or not, as it does for SuperLU)."""
+    A = sp.csr_matrix(matrix)
+    if A.shape[0] != A.shape[1]:
+        raise ValueError(f"nested_dissection needs a square matrix, got shape {A.shape}")
+    n = A.shape[0]
+    B = sp.csr_matrix((np.ones(A.indices.size, dtype=bool), A.indices, A.indptr), shape=(n, n))
+    S = (B + B.T + sp.identity(n, dtype=bool, format="csr")).tocsr()
+    S.sort_indices()
+    return S
+
+
+def compress(pattern: sp.csr_matrix) -> np.ndarray:
+    """Group the rows of a symmetric pattern (diagonal included) with identical column sets.
+
+    Returns ``group`` (n,): the compressed vertex of every row, numbered 0..m−1 in order
+    of first appearance. Rows are compared by two independent random 64-bit sums of their
+    column sets; a collision (probability ~n²/2¹²⁸) would only merge two vertices and
+    worsen the fill, never make the ordering invalid."""
+    n = pattern.shape[0]
+    rng = np.random.default_rng(20261202)  # fixed: the same matrix always gets the same order
+    keys = []
+    for _ in range(2):
+        w = rng.integers(1, np.iinfo(np.uint64).max, size=n, dtype=np.uint64, endpoint=True)
+        # Every row holds its diagonal, so no reduceat segment is empty.
+        keys.append(np.add.reduceat(w[pattern.indices], pattern.indptr[:-1]))
+    order = np.lexsort(keys)
+    new = np.ones(n, dtype=bool)
+    new[1:] = (keys[0][order][1:] != keys[0][order][:-1]) | (keys[1][order][1:] != keys[1][order][:-1])
+    label_sorted = np.cumsum(new) - 1
+    label = np.empty(n, dtype=np.int64)
+    label[order] = label_sorted
+    # Renumber by first appearance (keeps the mesh's own numbering where it helps locality).
+    _, first = np.unique(label, return_index=True)
+    rank = np.empty(first.size, dtype=np.int64)
+    rank[np.argsort(first)] = np.arange(first.size)
+    return rank[label]
+
+
+def _quotient(pattern: sp.csr_matrix, group: np.ndarray) -> sp.csr_matrix:
+    """The graph of the compressed vertices (no self loops): one representative row each."""
+    m = int(group.max()) + 1
+    rep = np.empty(m, dtype=np.int64)
+    rep[group[::-1]] = np.arange(group.size)[::-1]  # the first row of each group
+    rows = pattern[rep]
+    r = np.repeat(np.arange(m), np.diff(rows.indptr))
+    c = group[rows.indices]
+    off = r != c
+    Q = sp.csr_matrix((np.ones(int(off.sum()), dtype=np.int8), (r[off], c[off])), shape=(m, m))
+    Q.sum_duplicates()
+    return Q
+
+
+def _csr(r: np.ndarray, c: np.ndarray, k: int) -> sp.csr_matrix:
+    """A k × k graph from edges sorted by row (no sorting, no duplicate check: the edge
+    lists here are always filtered from a canonical matrix, so they stay canonical)."""
+    indptr = np.zeros(k + 1, dtype=np.int32)
+    np.cumsum(np.bincount(r, minlength=k), out=indptr[1:])
+    G = sp.csr_matrix((np.ones(c.size), c, indptr), shape=(k, k))
+    G.has_sorted_indices = True  # filtered from sorted rows: spare csgraph the checks
+    G.has_canonical_format = True
+    return G
+
+
+def _depths(G: sp.csr_matrix, starts: np.ndarray) -> np.ndarray:
+    """Breadth-first distance of every vertex from the start vertex of its component, all
+    components in one search: a virtual root (vertex k) points to every start, and the
+    depths follow from the predecessor tree by pointer doubling (log₂(depth) passes).
+    Vertices of components without a start get depth 0."""
+    k = G.shape[0]
+    indptr = np.append(G.indptr, G.indptr[-1] + starts.size).astype(np.int32)
+    indices = np.concatenate([G.indices, starts.astype(np.int32)])
+    R = sp.csr_matrix((np.ones(indices.size), indices, indptr), shape=(k + 1, k + 1))
+    _, pred = breadth_first_order(R, k, directed=True, return_predecessors=True)
+    anc = pred.astype(np.int64)
+    anc[k] = k
+    anc[anc < 0] = k
+    dist = np.ones(k + 1, dtype=np.int64)
+    dist[k] = 0
+    while np.any(anc != k):
+        dist = dist + dist[anc]
+        anc = anc[anc]
+    return dist[:k] - 1
+
+
+def _farthest(comp: np.ndarray, depth: np.ndarray, n_comp: int) -> tuple[np.ndarray, np.ndarray]:
+    """Per component: its greatest depth (eccentricity of the start) and a vertex there."""
+    ecc = np.zeros(n_comp, dtype=np.int64)
+    np.maximum.at(ecc, comp, depth)
+    at_max = np.flatnonzero(depth == ecc[comp])
+    far = np.empty(n_comp, dtype=np.int64)
+    far[comp[at_max[::-1]]] = at_max[::-1]  # any vertex at the greatest depth will do
+    return far, ecc
+
+
+def _dissect_level(G: sp.csr_matrix, comp: np.ndarray, n_comp: int, big: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """One dissection step for every component of G listed in ``big`` at once.
+
+    Returns (separator mask over the vertices, mask over ``big`` of the components that
+    cannot be split by levels and become leaves)."""
+    k = comp.size
+    first = np.empty(n_comp, dtype=np.int64)
+    first[comp[::-1]] = np.arange(k)[::-1]  # the first vertex of each component
+    depth = _depths(G, first[big])
+    far, _ = _farthest(comp, depth, n_comp)
+    depth = _depths(G, far[big])  # the second sweep: from a pseudo-peripheral vertex
+    _, ecc = _farthest(comp, depth, n_comp)
+    # Cutting at level ℓ separates the levels below from those above by the level-ℓ
+    # vertices with a neighbour one level up. Per component choose the ℓ in 1..ecc−1 with
+    # the least separator size / smaller side (a ratio cut: balance and a small separator
+    # both count); histograms over (component, level) bins, each component's bins
+    # contiguous, so every component is decided at once.
+    r = np.repeat(np.arange(k, dtype=np.int32), np.diff(G.indptr))
+    has_up = np.zeros(k, dtype=bool)
+    has_up[r[depth[G.indices] == depth[r] + 1]] = True
+    offset = np.zeros(n_comp + 1, dtype=np.int64)
+    np.cumsum(ecc + 1, out=offset[1:])
+    bins = offset[comp] + depth
+    n_bins = int(offset[-1])
+    count = np.bincount(bins, minlength=n_bins)
+    cut = np.bincount(bins, weights=has_up, minlength=n_bins)
+    bin_comp = np.repeat(np.arange(n_comp), ecc + 1)
+    bin_level = np.arange(n_bins) - offset[bin_comp]
+    cum = np.cumsum(count)
+    before = (cum - count)[offset[:-1]][bin_comp]  # vertices of the earlier components
+    size = np.bincount(comp, minlength=n_comp)
+    below = cum - before - cut  # levels ≤ ℓ without the separator
+    above = size[bin_comp] - (cum - before)
+    splits = np.zeros(n_comp, dtype=bool)
+    splits[big] = ecc[big] >= 2  # else within one step of one vertex: no level splits it
+    valid = splits[bin_comp] & (bin_level >= 1) & (bin_level <= ecc[bin_comp] - 1) & (cut > 0)
+    score = np.full(n_bins, np.inf)
+    score[valid] = cut[valid] / np.maximum(np.minimum(below, above)[valid], 1)
+    best = np.minimum.reduceat(score, offset[:-1])
+    splits &= np.isfinite(best)
+    at_best = np.flatnonzero(score == best[bin_comp])
+    pick = np.zeros(n_comp, dtype=np.int64)
+    pick[bin_comp[at_best[::-1]]] = at_best[::-1]  # the lowest such level
+    level = pick - offset[:-1]
+    sep = has_up & splits[comp] & (depth == level[comp])
+    return sep, ~splits[big]
+
+
+def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.ndarray:
+    """An elimination order of a (structurally) symmetric sparse matrix: ``p`` such that
+    ``matrix[p][:, p]`` factors with little fill. Returns an int64 permutation of range(n).
+    The pattern used is that of matrix + matrixᵀ, so an unsymmetric pattern is accepted."""
+    n = matrix.shape[0]
+    if matrix.shape != (n, n):
+        raise ValueError(f"nested_dissection needs a square matrix, got shape {matrix.shape}")
+    if n == 0:
+        return np.zeros(0, dtype=np.int64)
+    pattern = _pattern(matrix)
+    group = compress(pattern)
+    Q = _quotient(pattern, group)
+    m = Q.shape[0]
+    # The graph of the vertices not yet ordered, as row-sorted edge lists in their own
+    # numbering (filtering keeps them sorted, so every level rebuilds it without sorting).
+    r = np.repeat(np.arange(m, dtype=np.int32), np.diff(Q.indptr))
+    c = Q.indices.astype(np.int32)
+    # The dissection tree: node 0 is a virtual root; every component met at some level is
+    # a node (holding its separator, or all of it when it is a leaf), child of the node of
+    # the component it was cut from.
+    node_of = np.zeros(m, dtype=np.int64)  # the tree node holding each vertex, when final
+    parent_of = np.zeros(m, dtype=np.int64)  # for vertices not yet final: their parent node
+    tree_parent = [np.zeros(1, dtype=np.int64)]
+    n_nodes = 1
+    active = np.arange(m)
+    for depth_level in range(MAX_LEVELS + 1):
+        k = active.size
+        if k == 0:
+            break
+        G = _csr(r, c, k)
+        n_comp, comp = connected_components(G, directed=True, connection="strong")
+        size = np.bincount(comp, minlength=n_comp)
+        nodes = n_nodes + np.arange(n_comp)
+        up = np.zeros(n_comp, dtype=np.int64)
+        up[comp] = parent_of[active]  # one parent per component (it was cut from one)
+        tree_parent.append(up)
+        n_nodes += n_comp
+        leaf_comp = size <= leaf_size
+        if depth_level == MAX_LEVELS:
+            leaf_comp[:] = True
+        big = np.flatnonzero(~leaf_comp)
+        sep = np.zeros(k, dtype=bool)
+        if big.size:
+            sep, whole = _dissect_level(G, comp, n_comp, big)
+            leaf_comp[big[whole]] = True
+        final = leaf_comp[comp] | sep
+        node_of[active[final]] = nodes[comp[final]]
+        parent_of[active[~final]] = nodes[comp[~final]]
+        rest = ~final
+        keep = rest[r] & rest[c]
+        local = (np.cumsum(rest) - 1).astype(np.int32)
+        r, c = local[r[keep]], local[c[keep]]
+        active = active[rest]
+    # A postorder of the tree (children before parents, each subtree contiguous): the
+    # reverse of a preorder. SuperLU in symmetric mode does not postorder the elimination
+    # tree itself, and its supernode detection assumes a postorder.
+    parents = np.concatenate(tree_parent)
+    child = np.arange(1, n_nodes)
+    tree = sp.csr_matrix((np.ones(n_nodes - 1, dtype=np.int8), (parents[1:], child)), shape=(n_nodes, n_nodes))
+    pre = breadth_first_order(tree, 0, directed=True, return_predecessors=False) if n_nodes == 1 else \
+        depth_first_order(tree, 0, directed=True, return_predecessors=False)
+    node_rank = np.empty(n_nodes, dtype=np.int64)
+    node_rank[pre[::-1]] = np.arange(n_nodes)
+    rank = np.empty(m, dtype=np.int64)
+    rank[np.lexsort((np.arange(m), node_rank[node_of]))] = np.arange(m)
+    # Expand: the unknowns of a compressed vertex consecutively, in their own order.
+    return np.lexsort((np.arange(n), rank[group])).astype(np.int64)
