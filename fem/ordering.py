@@ -45,57 +45,67 @@ LEAF_SIZE = 8
 MAX_LEVELS = 200
 
 
-def _pattern(matrix: sp.spmatrix) -> sp.csr_matrix:
-    """The symmetric sparsity pattern of ``matrix + matrixᵀ`` with the full diagonal (every
-    stored entry counts, zero or not, as it does for SuperLU)."""
-    A = sp.csr_matrix(matrix)
-    if A.shape[0] != A.shape[1]:
-        raise ValueError(f"nested_dissection needs a square matrix, got shape {A.shape}")
-    n = A.shape[0]
-    B = sp.csr_matrix((np.ones(A.indices.size, dtype=bool), A.indices, A.indptr), shape=(n, n))
-    S = (B + B.T + sp.identity(n, dtype=bool, format="csr")).tocsr()
-    S.sort_indices()
-    return S
-
-
-def compress(pattern: sp.csr_matrix) -> np.ndarray:
-    """Group the rows of a symmetric pattern (diagonal included) with identical column sets.
+def compress(matrix: sp.spmatrix) -> np.ndarray:
+    """Group the rows of a sparse matrix with identical sets of stored columns (the
+    unknowns of one mesh node: their rows hold the node's own unknowns and those of its
+    neighbours).
 
     Returns ``group`` (n,): the compressed vertex of every row, numbered 0..m−1 in order
-    of first appearance. Rows are compared by two independent random 64-bit sums of their
+    of first appearance. Rows are compared by two independent random 64-bit sums over their
     column sets; a collision (probability ~n²/2¹²⁸) would only merge two vertices and
-    worsen the fill, never make the ordering invalid."""
-    n = pattern.shape[0]
+    worsen the fill, never make the ordering invalid. Empty rows form one group."""
+    A = _rows(matrix)
+    n = A.shape[0]
     rng = np.random.default_rng(20261202)  # fixed: the same matrix always gets the same order
+    starts = np.minimum(A.indptr[:-1], max(A.indices.size - 1, 0))
+    empty = np.diff(A.indptr) == 0
     keys = []
     for _ in range(2):
         w = rng.integers(1, np.iinfo(np.uint64).max, size=n, dtype=np.uint64, endpoint=True)
-        # Every row holds its diagonal, so no reduceat segment is empty.
-        keys.append(np.add.reduceat(w[pattern.indices], pattern.indptr[:-1]))
+        key = np.add.reduceat(w[A.indices], starts) if A.indices.size else np.zeros(n, dtype=np.uint64)
+        key[empty] = 0  # reduceat gives an empty segment its next element; no entries: 0
+        keys.append(key)
     order = np.lexsort(keys)
     new = np.ones(n, dtype=bool)
     new[1:] = (keys[0][order][1:] != keys[0][order][:-1]) | (keys[1][order][1:] != keys[1][order][:-1])
-    label_sorted = np.cumsum(new) - 1
     label = np.empty(n, dtype=np.int64)
-    label[order] = label_sorted
+    label[order] = np.cumsum(new) - 1
     # Renumber by first appearance (keeps the mesh's own numbering where it helps locality).
-    _, first = np.unique(label, return_index=True)
+    first = np.full(int(label.max()) + 1, n, dtype=np.int64)
+    np.minimum.at(first, label, np.arange(n))
     rank = np.empty(first.size, dtype=np.int64)
     rank[np.argsort(first)] = np.arange(first.size)
     return rank[label]
 
 
-def _quotient(pattern: sp.csr_matrix, group: np.ndarray) -> sp.csr_matrix:
-    """The graph of the compressed vertices (no self loops): one representative row each."""
+def _rows(matrix: sp.spmatrix) -> sp.csr_matrix:
+    """Row access without a copy: a CSC matrix is read as the CSR of its transpose (the
+    same graph once symmetrized, and the same groups for a symmetric pattern)."""
+    if sp.issparse(matrix) and matrix.format == "csc":
+        return matrix.T
+    return sp.csr_matrix(matrix)
+
+
+def _quotient(matrix: sp.spmatrix, group: np.ndarray) -> sp.csr_matrix:
+    """The symmetric graph of the compressed vertices (no self loops) from one
+    representative row each, keeping the entries in representative columns (for a
+    symmetric pattern these are all the neighbours); symmetrized as Q + Qᵀ so that any
+    pattern gives an undirected graph."""
+    A = _rows(matrix)
     m = int(group.max()) + 1
     rep = np.empty(m, dtype=np.int64)
     rep[group[::-1]] = np.arange(group.size)[::-1]  # the first row of each group
-    rows = pattern[rep]
+    is_rep = np.zeros(group.size, dtype=bool)
+    is_rep[rep] = True
+    rows = A[rep]
     r = np.repeat(np.arange(m), np.diff(rows.indptr))
-    c = group[rows.indices]
+    keep = is_rep[rows.indices]
+    r, c = r[keep], group[rows.indices[keep]]
     off = r != c
     Q = sp.csr_matrix((np.ones(int(off.sum()), dtype=np.int8), (r[off], c[off])), shape=(m, m))
+    Q = (Q + Q.T).tocsr()
     Q.sum_duplicates()
+    Q.sort_indices()
     return Q
 
 
@@ -192,15 +202,14 @@ def _dissect_level(G: sp.csr_matrix, comp: np.ndarray, n_comp: int, big: np.ndar
 def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.ndarray:
     """An elimination order of a (structurally) symmetric sparse matrix: ``p`` such that
     ``matrix[p][:, p]`` factors with little fill. Returns an int64 permutation of range(n).
-    The pattern used is that of matrix + matrixᵀ, so an unsymmetric pattern is accepted."""
+    An unsymmetric pattern is accepted (the graph of the compressed rows is symmetrized)."""
     n = matrix.shape[0]
     if matrix.shape != (n, n):
         raise ValueError(f"nested_dissection needs a square matrix, got shape {matrix.shape}")
     if n == 0:
         return np.zeros(0, dtype=np.int64)
-    pattern = _pattern(matrix)
-    group = compress(pattern)
-    Q = _quotient(pattern, group)
+    group = compress(matrix)
+    Q = _quotient(matrix, group)
     m = Q.shape[0]
     # The graph of the vertices not yet ordered, as row-sorted edge lists in their own
     # numbering (filtering keeps them sorted, so every level rebuilds it without sorting).
