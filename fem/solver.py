@@ -51,9 +51,11 @@ FAST_FROM = 40_000
 #: CHOLMOD's default (which tries several) on planshear's matrices (benchmarks/RESULTS.md).
 CHOLMOD_ORDERING = "amd"
 #: From this many unknowns on, SuperLU factors in planshear's own nested-dissection order
-#: (fem/ordering.py) instead of its minimum degree: below it the two are as fast within
-#: noise, above it ours is faster (benchmarks/RESULTS.md, "SuperLU with planshear's ordering").
-SUPERLU_ND_FROM = 20_000
+#: (fem/ordering.py) instead of its minimum degree. Measured (CPU s, ordering included):
+#: at 10k–25k ours is up to 25 % slower, at 50k even (rectangle 0.36 vs 0.47, irregular
+#: 0.38 vs 0.39), at 250k–1M clearly faster (benchmarks/RESULTS.md, "SuperLU with
+#: planshear's ordering").
+SUPERLU_ND_FROM = 50_000
 #: Environment variable that forces one backend (for benchmarks and tests).
 BACKEND_ENV = "PLANSHEAR_SOLVER"
 
