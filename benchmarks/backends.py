@@ -14,6 +14,12 @@ peak memory is its own), ``--repeats`` times; the table gives the median. The lo
 of the machine (os.getloadavg) is recorded with every run, since the machine may be shared:
 compare backends by their ratios within one run rather than by absolute times.
 
+``superlu`` is SuperLU as planshear picks it (planshear's nested-dissection ordering from
+fem/solver.SUPERLU_ND_FROM unknowns on); ``superlu-mmd`` and ``superlu-nd`` force SuperLU's
+own minimum degree or our ordering at every size (the crossover), and every run with our
+ordering also times the ordering alone (``ordering`` in the record). Factorization CPU seconds
+are recorded beside the wall time, for a shared machine.
+
 Besides planshear's backends (fem/solver.py) it runs CHOLMOD through scikit-sparse with
 each ordering ("amd", "metis", "nesdis" and CHOLMOD's default), the best of which is the
 baseline, and cholespy (a wheel with CHOLMOD and a reference BLAS), measured as a
