@@ -112,8 +112,8 @@ def test_long_path():
 def test_less_fill_than_superlu_minimum_degree(shape):
     """On a square and on a 2:1 membrane-like mesh (2 unknowns per node, 28.8k and 25.6k
     unknowns) our nested dissection leaves less fill than SuperLU's MMD on A + Aᵀ, both
-    counted by SuperLU. Measured (2026-12-02): 120×120: nnz(L+U) 4.10M vs 4.67M; 160×80:
-    3.48M vs 3.75M. (On a 6:1 strip, 300×50, the two are even: 3.76M vs 3.70M, so the
+    counted by SuperLU. Measured (2026-12-02): 120×120: nnz(L+U) 4.19M vs 4.67M; 160×80:
+    3.52M vs 3.75M. (On a 6:1 strip, 300×50, the two are even: 3.76M vs 3.70M, so the
     test does not use one; planshear's own matrices are in benchmarks/RESULTS.md.)"""
     A = _grid_matrix(*shape)
     assert _fill(A, nested_dissection(A)) < _fill(A, None)
