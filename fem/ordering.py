@@ -42,7 +42,7 @@ __all__ = ["nested_dissection", "compress"]
 
 #: Components of at most this many compressed vertices (mesh nodes) are not dissected
 #: further (their own order is breadth-first). Measured on the 250k-DOF rectangle: nnz(L+U)
-#: 45.2M / 46.3M / 48.4M / 55.3M for leaves of 4 / 8 / 16 / 32, factor times equal within
+#: 45.2M / 46.3M / 48.4M for leaves of 4 / 8 / 16, factor times equal within
 #: noise up to 16; smaller leaves cost more levels of ordering time.
 LEAF_SIZE = 8
 #: Dissection levels at most; deeper components are left whole as leaves. A 2-D mesh of a
