@@ -14,6 +14,12 @@ peak memory is its own), ``--repeats`` times; the table gives the median. The lo
 of the machine (os.getloadavg) is recorded with every run, since the machine may be shared:
 compare backends by their ratios within one run rather than by absolute times.
 
+``superlu`` is SuperLU as planshear picks it (planshear's nested-dissection ordering from
+fem/solver.SUPERLU_ND_FROM unknowns on); ``superlu-mmd`` and ``superlu-nd`` force SuperLU's
+own minimum degree or our ordering at every size (the crossover), and every run with our
+ordering also times the ordering alone (``ordering`` in the record). Factorization CPU seconds
+are recorded beside the wall time, for a shared machine.
+
 Besides planshear's backends (fem/solver.py) it runs CHOLMOD through scikit-sparse with
 each ordering ("amd", "metis", "nesdis" and CHOLMOD's default), the best of which is the
 baseline, and cholespy (a wheel with CHOLMOD and a reference BLAS), measured as a
@@ -42,7 +48,7 @@ HERE = Path(__file__).resolve().parent
 SIZES = [50_000, 250_000, 1_000_000]
 KINDS = ["rectangle", "irregular"]
 #: Every runner: planshear's backends first, then the references and candidates.
-RUNNERS = ["superlu", "pardiso", "cvxopt", "cholmod", "cholmod-amd", "cholmod-metis",
+RUNNERS = ["superlu", "superlu-mmd", "superlu-nd", "pardiso", "cvxopt", "cholmod", "cholmod-amd", "cholmod-metis",
            "cholmod-nesdis", "cholmod-default", "cholespy"]
 #: Measured once per matrix (not planshear backends; slow where they lose).
 CANDIDATES = {"cholespy"}
@@ -67,6 +73,12 @@ def _factorizer(name: str):
         if name not in available_backends():
             return None
         return lambda K: factorize(K, name).solve
+    if name in ("superlu-mmd", "superlu-nd"):
+        # SuperLU with one ordering at every size: SuperLU's own minimum degree (the
+        # default before issue 15) or planshear's nested dissection (fem/ordering.py).
+        from planshear.fem.solver import _superlu
+
+        return lambda K: _superlu(K, name.split("-")[1]).solve
     if name.startswith("cholmod-"):
         try:
             from sksparse.cholmod import cholesky
@@ -111,9 +123,9 @@ def run_one(name: str, path: str) -> dict | None:
     K, loads = _load(path)
     before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
     load_start = os.getloadavg()[0]
-    start = time.perf_counter()
+    start, cpu = time.perf_counter(), time.process_time()
     solve = make(K)
-    factor_time = time.perf_counter() - start
+    factor_time, factor_cpu = time.perf_counter() - start, time.process_time() - cpu
     fortran = np.asfortranarray(loads)
     start = time.perf_counter()
     u = solve(fortran)
@@ -126,12 +138,19 @@ def run_one(name: str, path: str) -> dict | None:
         solve(loads[:, j].copy())
     solve_columns = time.perf_counter() - start
     u = np.asarray(u).reshape(loads.shape)
+    peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
+    ordering = None
+    if name in ("superlu", "superlu-nd"):  # its share of the factorization, timed apart
+        from planshear.fem.ordering import nested_dissection
+
+        start, cpu = time.perf_counter(), time.process_time()
+        nested_dissection(K)
+        ordering = {"seconds": time.perf_counter() - start, "cpu": time.process_time() - cpu}
     residual = np.linalg.norm(loads - K @ u, axis=0) / np.linalg.norm(loads, axis=0)
-    return {"runner": name, "n": K.shape[0], "cases": loads.shape[1], "factorization": factor_time,
+    return {"runner": name, "n": K.shape[0], "cases": loads.shape[1], "factorization": factor_time, "factorization_cpu": factor_cpu,
             "solve": solve_time, "solve_c_order": solve_c, "solve_by_column": solve_columns,
-            "residual": float(residual.max()), "input_mb": before,
-            "peak_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0,
-            "load": [load_start, os.getloadavg()[0]]}
+            "residual": float(residual.max()), "input_mb": before, "ordering": ordering,
+            "peak_mb": peak, "load": [load_start, os.getloadavg()[0]]}
 
 
 def run_cli(plan: str) -> dict:
@@ -158,11 +177,13 @@ def _subprocess(python: str, args: list[str]) -> dict | None:
 
 
 def _median(runs: list[dict]) -> dict:
-    keys = ["factorization", "solve", "solve_c_order", "solve_by_column", "residual", "peak_mb", "input_mb"]
+    keys = ["factorization", "factorization_cpu", "solve", "solve_c_order", "solve_by_column", "residual", "peak_mb", "input_mb"]
     out = dict(runs[0])
     out.update({k: statistics.median(r[k] for r in runs) for k in keys})
     out["load"] = [min(r["load"][0] for r in runs), max(r["load"][1] for r in runs)]
     out["repeats"] = len(runs)
+    if runs[0].get("ordering"):
+        out["ordering"] = {k: statistics.median(r["ordering"][k] for r in runs) for k in ("seconds", "cpu")}
     return out
 
 
@@ -199,7 +220,10 @@ def benchmark(sizes: list[int], kinds: list[str], repeats: int, python: str, rec
                         r = record["runners"][name]
                         print(f"    {name:16s} factor {r['factorization']:7.2f}  solve {r['solve']:6.2f} "
                               f"(C order {r['solve_c_order']:.2f}, by column {r['solve_by_column']:.2f})  "
-                              f"residual {r['residual']:.1e}  peak {r['peak_mb']:.0f} MB  "
+                              f"cpu {r['factorization_cpu']:.2f}  "
+                              + (f"ordering {r['ordering']['seconds']:.2f} (cpu {r['ordering']['cpu']:.2f})  "
+                                 if r.get("ordering") else "")
+                              + f"residual {r['residual']:.1e}  peak {r['peak_mb']:.0f} MB  "
                               f"load {r['load'][0]:.1f}-{r['load'][1]:.1f}", flush=True)
                 records.append(record)
                 os.unlink(path)

@@ -7,7 +7,9 @@ applied to every backend alike by :func:`planshear.fem.model.solve`.
 
 Backends (``benchmarks/backends.py`` measures them side by side; RESULTS.md has the numbers):
 
-* ``superlu``: SciPy's SuperLU with a symmetric ordering. Always installed; the fallback.
+* ``superlu``: SciPy's SuperLU in symmetric mode, from :data:`SUPERLU_ND_FROM` unknowns on
+  in planshear's nested-dissection order (fem/ordering.py), below it with SuperLU's own
+  minimum degree. Always installed; the fallback.
 * ``pardiso``: Intel MKL PARDISO (Cholesky, METIS ordering) through ctypes, when the
   ``mkl`` wheel is installed (extra ``planshear[pardiso]``; x86-64 only).
 * ``cvxopt``: CHOLMOD as bundled in the cvxopt wheels (extra ``planshear[gpl]``: cvxopt
@@ -34,6 +36,7 @@ import scipy.sparse as sp
 from scipy.sparse.linalg import splu
 
 from planshear.errors import AnalysisError
+from planshear.fem.ordering import nested_dissection
 
 __all__ = ["Factor", "factorize", "available_backends", "choose_backend", "BACKENDS"]
 
@@ -47,6 +50,12 @@ FAST_FROM = 40_000
 #: CHOLMOD's fill-reducing ordering: AMD was the fastest of "amd", "metis", "nesdis" and
 #: CHOLMOD's default (which tries several) on planshear's matrices (benchmarks/RESULTS.md).
 CHOLMOD_ORDERING = "amd"
+#: From this many unknowns on, SuperLU factors in planshear's own nested-dissection order
+#: (fem/ordering.py) instead of its minimum degree. Measured (CPU s, ordering included):
+#: at 10k–25k ours is up to 25 % slower, at 50k even (rectangle 0.36 vs 0.47, irregular
+#: 0.38 vs 0.39), at 250k–1M clearly faster (benchmarks/RESULTS.md, "SuperLU with
+#: planshear's ordering").
+SUPERLU_ND_FROM = 50_000
 #: Environment variable that forces one backend (for benchmarks and tests).
 BACKEND_ENV = "PLANSHEAR_SOLVER"
 
@@ -113,12 +122,41 @@ def factorize(matrix: sp.spmatrix, backend: str | None = None) -> Factor:
     return _FACTORIZE[backend](matrix)
 
 
-def _superlu(matrix: sp.spmatrix) -> Factor:
-    # Symmetric minimum-degree ordering on A + Aᵀ and no pivoting threshold (the natural
-    # MMD_ATA ordering is far slower on these matrices).
-    lu = splu(sp.csc_matrix(matrix), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
-              options={"SymmetricMode": True})
-    return Factor("superlu", lambda b: lu.solve(np.asfortranarray(b)), lu)
+def _superlu(matrix: sp.spmatrix, ordering: str | None = None) -> Factor:
+    """SuperLU in symmetric mode (diagonal pivots, no threshold). ``ordering``: "nd"
+    (planshear's nested dissection, fem/ordering.py, fed to SuperLU as the NATURAL order
+    of the permuted matrix), "mmd" (SuperLU's own minimum degree on A + Aᵀ) or None for
+    the measured choice: nested dissection from :data:`SUPERLU_ND_FROM` unknowns on."""
+    K = sp.csc_matrix(matrix)
+    if ordering is None:
+        ordering = "nd" if K.shape[0] >= SUPERLU_ND_FROM else "mmd"
+    options = {"diag_pivot_thresh": 0.0, "options": {"SymmetricMode": True}}
+    if ordering == "mmd":
+        # SuperLU's natural MMD_ATA ordering is far slower on these matrices.
+        lu = splu(K, permc_spec="MMD_AT_PLUS_A", **options)
+        return Factor("superlu", lambda b: lu.solve(np.asfortranarray(b)), lu)
+    if ordering != "nd":
+        raise ValueError(f"SuperLU ordering {ordering!r}: use 'nd', 'mmd' or None")
+    p = nested_dissection(K)
+    # P K Pᵀ: the columns in the order p, then the row indices renumbered (cheaper than
+    # K[p][:, p], which reorders the rows of a CSC matrix the slow way).
+    inverse = np.empty_like(p)
+    inverse[p] = np.arange(p.size)
+    permuted = K[:, p]
+    permuted.indices = inverse[permuted.indices].astype(permuted.indices.dtype)
+    permuted.has_sorted_indices = False
+    permuted.sort_indices()
+    lu = splu(permuted, permc_spec="NATURAL", **options)
+    del permuted
+
+    def solve(b: np.ndarray) -> np.ndarray:
+        # K = Pᵀ (PKPᵀ) P: solve (PKPᵀ) y = P b, then x = Pᵀ y; all columns in one call.
+        y = lu.solve(np.asfortranarray(b[p]))
+        x = np.empty_like(y)
+        x[p] = y
+        return x
+
+    return Factor("superlu", solve, lu)
 
 
 def _cholmod(matrix: sp.spmatrix) -> Factor:
