@@ -123,6 +123,44 @@ def _idealized_zone_shear(result, region) -> tuple[float, float]:
     return best, at
 
 
+def _transfer_zone_shear(result, region, plan: Plan) -> tuple[float, str]:
+    """(largest |net unit shear| (N/m) where a transfer region of ``result`` lies in
+    ``region``, where it is). The net shear is the main span unit shear V(s)/ℓ(s) plus the
+    region's transfer shear of each band across the span (see
+    :mod:`planshear.postprocess.transfer`; both with the sign of V), read over the span
+    range of the part of the band inside the region: at the analogy's stations and just
+    inside both ends, as :func:`_idealized_zone_shear`."""
+    best, where = 0.0, ""
+    spans = {axis: (stations, unit_shear_along(shear, length))
+             for axis, stations, shear, length in result.extra.get("span_shear", ())}
+    scale, unit = plan.length_scale, plan.length_unit
+    for td in result.extra.get("transfer", ()):
+        if td.axis not in spans:
+            continue
+        stations, v = spans[td.axis]
+        s_index = 1 if td.axis == "x" else 0
+        t_index = 1 - s_index
+        inset = 2e-7 * float(np.ptp(stations))
+        s_lo, s_hi = td.s_range
+        for t0, t1, tau in td.shears:
+            corners = np.zeros((4, 2))
+            corners[:, s_index] = [s_lo, s_hi, s_hi, s_lo]
+            corners[:, t_index] = [t0, t0, t1, t1]
+            part = shapely.Polygon(corners).intersection(region)
+            for lo, hi in _s_intervals(part, s_index):
+                inside = (stations > lo) & (stations < hi)
+                ends = np.array([lo + inset, hi - inset])
+                s_all = np.concatenate([stations[inside], ends])
+                net = np.concatenate([v[inside], np.interp(ends, stations, v)]) + tau
+                k = int(np.argmax(np.abs(net)))
+                if abs(net[k]) > best:
+                    best = float(abs(net[k]))
+                    where = (f"net unit shear (span V/ℓ + transfer shear) in transfer region {td.name}, "
+                             f"{'xy'[t_index]} = {t0 / scale:.4g}–{t1 / scale:.4g} {unit}, at "
+                             f"{'xy'[s_index]} = {s_all[k] / scale:.4g} {unit}")
+    return best, where
+
+
 def zone_unit_shear(plan: Plan, mesh, membrane: np.ndarray, axes: list[str], region, spacing: float,
                     cells: tuple | None = None) -> np.ndarray:
     """Finite-element unit shear N_xy (N/m) averaged along the part of each section that lies
@@ -165,18 +203,23 @@ def zone_unit_shear(plan: Plan, mesh, membrane: np.ndarray, axes: list[str], reg
     return out
 
 
-def _largest(current: Governing | None, value: float, assumption: str, case: LoadCase) -> Governing | None:
+def _largest(current: tuple[Governing, str] | None, value: float, assumption: str, case: LoadCase,
+             where: str = "") -> tuple[Governing, str] | None:
+    """(governing demand, where it is) after seeing ``value`` (N/m, before the combination factor)."""
     value = abs(value) * case.combination.diaphragm
-    if current is None or value > current.value:
-        return Governing(value, assumption, case.name, case.combination.diaphragm)
+    if current is None or value > current[0].value:
+        return Governing(value, assumption, case.name, case.combination.diaphragm), where
     return current
 
 
 def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[LoadCase, ...], envelope: Envelope,
-                  semirigid) -> dict[str, Governing | None]:
+                  semirigid) -> dict[str, tuple[Governing, str] | None]:
+    """Zone → (largest design unit shear, where it is). Flexible and rigid: the span's V/ℓ,
+    and where a transfer region lies in the zone the net unit shear there (main + transfer,
+    :func:`_transfer_zone_shear`), the larger governs; semi-rigid: N_xy along sections."""
     regions = zone_regions(plan)
     by_name = {c.name: c for c in cases}
-    demands: dict[str, Governing | None] = dict.fromkeys(regions)
+    demands: dict[str, tuple[Governing, str] | None] = dict.fromkeys(regions)
     for assumption, method in methods.items():
         if assumption.startswith("semirigid"):
             continue  # below, from the finite-element membrane forces
@@ -185,8 +228,12 @@ def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
             if assumption not in envelope.allowed[case.axis]:
                 continue
             for zone, region in regions.items():
-                value, _ = _idealized_zone_shear(result, region)
-                demands[zone] = _largest(demands[zone], value, assumption, case)
+                value, at = _idealized_zone_shear(result, region)
+                s_name = "y" if case.axis == "x" else "x"
+                demands[zone] = _largest(demands[zone], value, assumption, case,
+                                         f"span V/ℓ at {s_name} = {at / plan.length_scale:.4g} {plan.length_unit}")
+                net, where = _transfer_zone_shear(result, region, plan)
+                demands[zone] = _largest(demands[zone], net, assumption, case, where)
     if semirigid is not None and "semirigid" in methods:
         names = list(methods["semirigid"].cases)
         axes = [by_name[n].axis for n in names]
@@ -195,7 +242,8 @@ def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
         for zone, region in regions.items():
             values = zone_unit_shear(plan, semirigid.mesh, semirigid.membrane, axes, region, plan.mesh.size, cells)
             for j in np.flatnonzero(allowed):
-                demands[zone] = _largest(demands[zone], float(values[j]), "semirigid", by_name[names[j]])
+                demands[zone] = _largest(demands[zone], float(values[j]), "semirigid", by_name[names[j]],
+                                         "N_xy averaged along a section in the zone")
     return demands
 
 
@@ -214,11 +262,14 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
     places: dict[str, object] = {}
     regions = zone_regions(plan)
     zone_caps = {**({MAIN: caps.diaphragm} if caps.diaphragm is not None else {}), **caps.zones}
-    for zone, governing in _zone_demands(plan, methods, cases, envelope, semirigid).items():
+    for zone, found in _zone_demands(plan, methods, cases, envelope, semirigid).items():
         item = "diaphragm outside the zones" if zone == MAIN else f"zone {zone}"
+        governing, where = found if found is not None else (None, "")
         checks.append(Check("zone", item, "unit shear", 0.0 if governing is None else governing.value,
                             zone_caps.get(zone), governing,
-                            "flexible/rigid: V / cut length along the span; semi-rigid: N_xy averaged along each section in the zone"))
+                            "flexible/rigid: V / cut length along the span, and the net unit shear (main + transfer) "
+                            "in transfer regions; semi-rigid: N_xy averaged along each section in the zone"
+                            + (f"; governs: {where}" if where else "")))
         places[item] = regions[zone]
     by_id = {w.id: w for w in plan.walls}
     for wall_id, slots in envelope.walls.items():
