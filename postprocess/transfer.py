@@ -39,6 +39,7 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 
+from planshear.fem.collectors import bar_extents
 from planshear.loads import ForceField
 from planshear.plan import GridLine, Plan
 
@@ -345,12 +346,14 @@ def transfer_peaks(extra: dict) -> tuple[list[tuple[str, float]], list[tuple[str
 def strut_cautions(plan: Plan, methods: dict) -> dict[str, str]:
     """Envelope cautions for the collectors that extend offset chords into transfer
     regions (name as in :func:`transfer_peaks` → text) where the semi-rigid model has no
-    member along that strut: the idealized methods rely on it, the finite-element model
+    bar along that strut (no declared member, outline chord or implied collector over its
+    whole length, :func:`planshear.fem.collectors.bar_extents`): the idealized methods rely on it, the finite-element model
     does not contain it, so its force has no semi-rigid value and the notch wing may be
     modelled without its load path."""
     if "semirigid" not in methods:
         return {}
     scale, unit = plan.length_scale, plan.length_unit
+    bars = bar_extents(plan)  # declared members, outline chords and implied collectors
     cautions: dict[str, str] = {}
     for assumption in ("flexible", "rigid"):
         for result in getattr(methods.get(assumption), "cases", {}).values():
@@ -362,14 +365,15 @@ def strut_cautions(plan: Plan, methods: dict) -> dict[str, str]:
                     if strut.role != "offset chord" or name in cautions:
                         continue
                     covered = strut.line is not None and any(
-                        m.line == strut.line and m.t_from <= s0 + tol and m.t_to >= s1 - tol for m in plan.members)
+                        a <= s0 + tol and b >= s1 - tol for a, b in bars.get(strut.line, ()))
                     if covered:
                         continue
                     where = f"line {strut.label}" if strut.line else f"the offset chord's line ({strut.label})"
                     cautions[name] = (
                         f"the flexible and rigid methods carry the interrupted chord force into transfer region "
                         f"{td.name} through a collector along {where} from {s0 / scale:g} to {s1 / scale:g} {unit}; the "
-                        "semi-rigid model has no member there, so it models neither that load path nor a force for it. "
+                        "semi-rigid model has no bar there (no declared member, outline chord or implied collector "
+                        "over that length), so it models neither that load path nor a force for it. "
                         f'Declare a [[member]] with role = "collector" on that line over that length (on a grid line) '
                         "to model and design it")
     return cautions

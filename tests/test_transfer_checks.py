@@ -3,6 +3,7 @@ demand includes the net shear of a transfer region, members on a grid line carry
 transfer struts on that line, and the semi-rigid caution about a missing strut counts
 every bar the model will have there."""
 
+import numpy as np
 import pytest
 from test_beam_analogy_sides import EXAMPLE_4_1
 
@@ -50,3 +51,45 @@ def test_zone_without_a_transfer_region_keeps_the_span_shear(plan_from):
     # Read 2e-7 × the span inside the zone end: relative error below 1e-5.
     assert check.demand / PLF == pytest.approx(300.0, rel=1e-5)
     assert "span V/ℓ" in check.note and "TD" not in check.note
+
+
+WALL_ON_B = '\n[[wall]]\nid = "WB"\nline = "B"\nfrom = 0\nto = 10\nstiffness = "50 kip/in"\n'
+
+
+def _strut_cautions(plan):
+    from planshear.idealized import flexible_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.postprocess.transfer import strut_cautions
+
+    flexible = flexible_analysis(plan, expand_load_cases(plan))
+    return strut_cautions(plan, {"flexible": flexible, "semirigid": None})
+
+
+def test_strut_caution_counts_implied_collectors_and_chords(plan_from):
+    """The struts extending the interrupted chord of line B (x = 0–15 and 35–50 ft,
+    Malone & Rice 2012, Example 4.1) have no declared member. With a wall on line B the
+    semi-rigid model puts a collector bar on the whole wall piece of line B (fem/collectors.py
+    rule: EA = chord_EA where no collector_EA is given; the notch edge x = 15–35 ft is the
+    outline chord), which covers both struts: no caution. Without the wall, or without any
+    EA to imply a bar, the model has no bar there and the caution stays."""
+    assert _strut_cautions(plan_from(_with(EXAMPLE_4_1, tail=WALL_ON_B))) == {}
+    bare = _strut_cautions(plan_from(EXAMPLE_4_1))
+    assert set(bare) == {"TD 2-1 collector on B", "TD 3-4 collector on B"}
+    assert "no declared member, outline chord or implied collector" in bare["TD 2-1 collector on B"]
+    no_ea = EXAMPLE_4_1.replace('chord_EA = "40000 kip"\n', "") + WALL_ON_B
+    assert set(_strut_cautions(plan_from(no_ea))) == {"TD 2-1 collector on B", "TD 3-4 collector on B"}
+
+
+def test_bar_extents_agree_with_the_collector_layout_of_the_mesh(plan_from):
+    """The plan-level rule (bar_extents) states what collector_layout builds on the mesh:
+    on the line with the wall, the implied and outline-chord segments of its wall piece
+    cover the same extent (x = 0–150 ft on line B)."""
+    from planshear.fem.collectors import bar_extents, collector_layout
+    from planshear.mesh import build_mesh
+
+    plan = plan_from(_with(EXAMPLE_4_1, tail=WALL_ON_B + '\n[mesh]\nsize = 10.0\n'))
+    layout = collector_layout(plan, build_mesh(plan))
+    pieces = layout.on_line("B")
+    np.testing.assert_allclose([(p.t_from / FT, p.t_to / FT) for p in pieces], [(0.0, 150.0)], atol=1e-6)
+    assert {s.kind for s in pieces[0].segments} == {"implied", "chord"}
+    np.testing.assert_allclose([(a / FT, b / FT) for a, b in bar_extents(plan)["B"]], [(0.0, 150.0)], atol=1e-6)
