@@ -305,12 +305,26 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
                 continue
             omega = role == "collector" and governing in (m.collector_tension_omega, m.collector_compression_omega)
             checks.append(Check("member", name, quantity, abs(governing.value), capacity, governing,
-                                f"{role} role" + (" with ASCE 7-16 §12.10.2.1" if omega else "")))
+                                f"{role} role" + (" with ASCE 7-16 §12.10.2.1" if omega else "")
+                                + _transfer_note(envelope, m.member.line, role)))
         if np.isfinite(m.member.start[0]):
             places[name] = shapely.LineString([m.member.start, m.member.end])
     order = {"fails": 0, "ok": 1, "no capacity": 2}
     checks.sort(key=lambda c: (order[c.status], -(c.ratio or 0.0)))
     return DesignChecks(tuple(checks), plan.design_basis, places)
+
+
+def _transfer_note(envelope: Envelope, line: str | None, role: str) -> str:
+    """What a member's role includes from transfer regions on its grid line (see
+    :attr:`planshear.postprocess.envelope.Envelope.transfer_parts`), for the check's note."""
+    parts = envelope.transfer_parts.get(line, {}) if line is not None else {}
+    if role == "collector" and parts.get("collector"):
+        return ("; includes " + ", ".join(parts["collector"]) + " (transfer forces added to the line's collector "
+                "force station by station, same case)")
+    if role == "chord" and parts.get("chord"):
+        return ("; enveloped with " + ", ".join(parts["chord"]) + " (each the total chord force in its transfer "
+                "region, main chord + transfer share, not added again)")
+    return ""
 
 
 @dataclass(frozen=True)

@@ -3,15 +3,139 @@ demand includes the net shear of a transfer region, members on a grid line carry
 transfer struts on that line, and the semi-rigid caution about a missing strut counts
 every bar the model will have there."""
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 from test_beam_analogy_sides import EXAMPLE_4_1
 
+from planshear.postprocess.envelope import Governing, member_envelopes
 from planshear.run import analyze
 
 from conftest import FT, KIP
 
 PLF = KIP / 1000 / FT
+
+#: Invented plan (a T-shaped wood floor 120 × 50 ft with a 40 × 40 ft stem on lines 2–3 and
+#: an opening across line B), from an engineer's review of transfer regions.
+QUARRY = """
+# Invented: Quarry Hill maker space, level 2 floor (wood), T-shaped with an opening on line B.
+[plan]
+name = "Quarry Hill makerspace - level 2"
+length_unit = "ft"
+code = "ASCE 7-16"
+job = "Q-117 Quarry Hill"
+engineer = "T. Vance"
+checker = "reviewer"
+date = 2026-12-02
+revision = "A"
+
+[diaphragm]
+outline  = [[0,0], [120,0], [120,50], [80,50], [80,90], [40,90], [40,50], [0,50]]
+openings = [[[56,44], [66,44], [66,56], [56,56]]]
+material = { kind = "wood-panel", Ga = "15 kip/in" }
+chord_EA = "30000 kip"
+capacity = "300 plf"
+
+[[diaphragm.zone]]
+name     = "stem"
+polygon  = [[40,50], [80,50], [80,90], [40,90]]
+material = { kind = "wood-panel", Ga = "20 kip/in" }
+capacity = "350 plf"
+
+[grid]
+x = { "1" = 0, "2" = 40, "3" = 80, "4" = 120 }
+y = { "A" = 0, "B" = 50, "C" = 90 }
+
+[wall_type.ply]
+wood = { Ga = "18 kip/in", height = "10 ft", chord_EA = "2000 kip", holdown_k = "60 kip/in" }
+
+[[wall]]
+id = "W1"
+line = "1"
+from = 5
+to = 45
+type = "ply"
+capacity = "10 kip"
+
+[[wall]]
+id = "W4"
+line = "4"
+from = 10
+to = 40
+type = "ply"
+unit_shear_capacity = "400 plf"
+
+[[wall]]
+id = "W2"
+line = "2"
+from = 60
+to = 85
+type = "ply"
+capacity = "8 kip"
+
+[[wall]]
+id = "W3"
+line = "3"
+from = 55
+to = 80
+type = "ply"
+
+[[wall]]
+id = "WA"
+line = "A"
+from = 10
+to = 110
+type = "ply"
+capacity = "40 kip"
+
+[[wall]]
+id = "WC"
+line = "C"
+from = 45
+to = 75
+type = "ply"
+capacity = "15 kip"
+
+[[member]]
+role = "collector"
+line = "B"
+EA = "9000 kip"
+tension_capacity = "6 kip"
+compression_capacity = "6 kip"
+
+[[member]]
+role = "collector"
+line = "2"
+from = 0
+to = 90
+EA = "9000 kip"
+
+[[load]]
+name = "E"
+kind = "seismic"
+area_weight = "25 psf"
+zone_area_weight = { "stem" = "32 psf" }
+line_weight = [{ line = "A", weight = "0.20 kip/ft" }]
+point_weight = [{ at = [100, 25], weight = "8 kip", footprint = 6 }]
+fpx = { SDS = 1.1, Ie = 1.0, story_force_ratio = 0.17 }
+fx = "48 kip"
+directions = ["x", "y"]
+collector_overstrength = 2.5
+sdc = "D"
+rho = 1.3
+drift = { Cd = 4.0, story_height = "10 ft", allowable = 0.025 }
+
+[design]
+basis = "ASD"
+
+[capacity]
+tension = "12 kip"
+compression = "12 kip"
+
+[mesh]
+size = 10.0
+"""
 
 
 def _with(text: str, diaphragm: str = "", tail: str = "") -> str:
@@ -93,3 +217,69 @@ def test_bar_extents_agree_with_the_collector_layout_of_the_mesh(plan_from):
     np.testing.assert_allclose([(p.t_from / FT, p.t_to / FT) for p in pieces], [(0.0, 150.0)], atol=1e-6)
     assert {s.kind for s in pieces[0].segments} == {"implied", "chord"}
     np.testing.assert_allclose([(a / FT, b / FT) for a, b in bar_extents(plan)["B"]], [(0.0, 150.0)], atol=1e-6)
+
+
+def test_member_on_a_grid_line_carries_the_transfer_struts(plan_from):
+    """Malone & Rice (2012), Example 4.1: the transverse collector on line 1 peaks at the
+    transfer beam's moment / L = 1012.5 × 40 / 15 = 2700 lb at B, and the collector
+    extending the interrupted chord along line B carries 10,062.5 lb at 3B (TD2). Line 1's
+    own collector is nil (its wall runs the full depth), so before, the member "line 1, A–C"
+    showed no such force; now its collector role and check carry 2700 lb (× Ω0 = 1, edge
+    load), and the member on line B carries the 10,062.5 lb strut in its collector role.
+    The transfer items stay listed on their own."""
+    result = analyze(plan_from(_with(EXAMPLE_4_1, tail='\n[capacity]\ntension = "20 kip"\n')), semirigid=False)
+    members = member_envelopes(result.envelope)
+    LB = KIP / 1000
+    assert members["line 1, A–C"].collector_tension.value / LB == pytest.approx(2700.0, rel=1e-6)
+    assert members["line B, 1–5"].collector_tension.value / LB == pytest.approx(10062.5, rel=1e-6)
+    assert "TD 3-4 collector on B" in members and "1 with TD 2-1" in members
+    check = _check(result.checks, "line 1, A–C", "tension")
+    assert check.demand / LB == pytest.approx(2700.0, rel=1e-6)
+    assert "1 with TD 2-1" in check.note and "line 1, A–C" in result.checks.places
+    parts = result.envelope.transfer_parts
+    assert set(parts["B"]["collector"]) == {"TD 2-1 collector on B", "TD 3-4 collector on B"}
+    assert set(parts["A"]["chord"]) == {"TD 2-1 chord on A", "TD 3-4 chord on A"}
+
+
+def test_transfer_chord_is_enveloped_with_the_chord_role_not_added(plan_from):
+    """transfer.py defines a support strut's force as the total chord force in the region
+    (main M/d where that chord is the outline's extreme, plus the transfer reaction
+    collected along it; Malone & Rice 2012, Example 4.1: 5062.5 lb at the notch on A for TD1).
+    Adding it to the main chord would count M/d twice, so the member's chord role is the
+    larger of the two envelopes (statics: one force per member per case)."""
+    result = analyze(plan_from(EXAMPLE_4_1), semirigid=False)
+    env = result.envelope
+    member = member_envelopes(env)["line A, 1–5"]
+    keys = ["TD 2-1 chord on A", "TD 3-4 chord on A"] + list(
+        next(m for m in env.layout.members if m.name == "line A, 1–5").chords)
+    expected = max(env.chords[k]["tension"].value for k in keys if env.chords[k].get("tension"))
+    assert member.chord_tension.value == pytest.approx(expected, rel=1e-12)
+    # A transfer chord larger than the main chord governs the member (and is not added to it).
+    main = member.chord_tension.value
+    larger = Governing(1.5 * main, "flexible", "W-y", 1.0)
+    chords = {**env.chords, "TD 2-1 chord on A": {**env.chords["TD 2-1 chord on A"], "tension": larger}}
+    assert member_envelopes(replace(env, chords=chords))["line A, 1–5"].chord_tension == larger
+    assert env.chords["TD 2-1 chord on A"]["compression"].value / (KIP / 1000) == pytest.approx(-5062.5, rel=1e-6)
+
+
+def test_strut_and_torsional_drag_on_one_line_add_station_by_station(plan_from):
+    """Superposition (statics, same member, same case): under the rigid method with load
+    along x the walls on line 2 take torsional forces, so line 2 carries a drag collector
+    diagram, and the strut extending the stem's interrupted chord lies on the same line
+    (y = 0–50 ft). The member's collector force is the sum at every station; at the notch
+    (y = 50 ft) the strut carries the stem chord force F = M/40 ft in full."""
+    from planshear.idealized import rigid_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.postprocess.transfer import line_collectors_with_transfer
+
+    plan = plan_from(QUARRY)
+    case = rigid_analysis(plan, expand_load_cases(plan)).cases["E+x"]
+    td = next(t for t in case.extra["transfer"] if t.name == "TD B-A")
+    strut = next(s for s in td.struts if s.role == "offset chord" and s.line == "2")
+    t, total, parts = line_collectors_with_transfer(case.extra, case.lines)["2"]
+    own = case.lines["2"]
+    assert np.abs(own.collector).max() > 0.05 * np.abs(strut.total).max()  # a real drag force to add
+    y = np.array([10.0, 25.0, 45.0]) * FT
+    expected = np.interp(y, own.stations, own.collector) + np.interp(y, strut.stations, strut.total)
+    np.testing.assert_allclose(np.interp(y, t, total), expected, rtol=1e-9, atol=1e-6)
+    assert parts == ("TD B-A collector on 2",)
