@@ -11,10 +11,14 @@ factor of the design basis applied.
   crosses the zone. Semi-rigid: the finite-element shear N_xy averaged along the part of
   each section that lies in the zone (never a nodal or element peak: peaks at re-entrant
   corners and wall ends are singular), at stations every mesh size across the zone.
+  Where a transfer region (flexible, rigid; :mod:`planshear.postprocess.transfer`) lies in
+  the zone, the net unit shear there (span V/ℓ + the region's transfer shear) counts too;
+  the check's note says where the governing value is.
 - **Walls**: the design force, or its unit shear force / length, against the capacity.
 - **Chords and collectors** (members by grid line and bay): the member's design tension and
   compression, each the larger of the chord role and the collector role with ASCE 7-16
-  §12.10.2.1 (Ω0 where the case requires it).
+  §12.10.2.1 (Ω0 where the case requires it). Transfer regions on the member's grid line
+  are part of it (:attr:`Envelope.transfer_parts`; the note names them).
 - **Splices**: the force at a declared chord splice from the same diagrams
   (:func:`splice_forces`).
 
@@ -123,6 +127,16 @@ def _idealized_zone_shear(result, region) -> tuple[float, float]:
     return best, at
 
 
+def _position(s: float, ends: tuple[float, float] = (np.nan, np.nan)) -> float:
+    """A station read just inside a range end (m) shown as that end (the inset is 2e-7 of the span)."""
+    lo, hi = ends
+    width = max(abs(hi - lo), 1e-9) if np.isfinite(lo) else 0.0
+    for end in (lo, hi):
+        if np.isfinite(end) and abs(s - end) <= 1e-6 * width:
+            return float(end)
+    return float(s)
+
+
 def _transfer_zone_shear(result, region, plan: Plan) -> tuple[float, str]:
     """(largest |net unit shear| (N/m) where a transfer region of ``result`` lies in
     ``region``, where it is). The net shear is the main span unit shear V(s)/ℓ(s) plus the
@@ -157,7 +171,7 @@ def _transfer_zone_shear(result, region, plan: Plan) -> tuple[float, str]:
                     best = float(abs(net[k]))
                     where = (f"net unit shear (span V/ℓ + transfer shear) in transfer region {td.name}, "
                              f"{'xy'[t_index]} = {t0 / scale:.4g}–{t1 / scale:.4g} {unit}, at "
-                             f"{'xy'[s_index]} = {s_all[k] / scale:.4g} {unit}")
+                             f"{'xy'[s_index]} = {_position(s_all[k], (lo, hi)) / scale:.4g} {unit}")
     return best, where
 
 
@@ -230,8 +244,11 @@ def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
             for zone, region in regions.items():
                 value, at = _idealized_zone_shear(result, region)
                 s_name = "y" if case.axis == "x" else "x"
+                span = result.extra.get("span_shear", ())
+                ends = [(float(st[0]), float(st[-1])) for _, st, _, _ in span if len(st)]
                 demands[zone] = _largest(demands[zone], value, assumption, case,
-                                         f"span V/ℓ at {s_name} = {at / plan.length_scale:.4g} {plan.length_unit}")
+                                         f"span V/ℓ at {s_name} = {_position(at, *ends[:1]) / plan.length_scale:.4g} "
+                                         f"{plan.length_unit}")
                 net, where = _transfer_zone_shear(result, region, plan)
                 demands[zone] = _largest(demands[zone], net, assumption, case, where)
     if semirigid is not None and "semirigid" in methods:

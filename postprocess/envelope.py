@@ -22,6 +22,14 @@ chord on a grid line enters the chord role only in the cases across it (in the c
 it the same bar is the line's collector). The idealized methods keep their roles apart by
 construction (collector = running sum along the line, chord = M/depth) and are taken as
 they are. Members are named by grid line and bay (:func:`member_layout`).
+
+Transfer regions (flexible, rigid) act on members that lie on grid lines: the strut that
+extends an interrupted chord, and the transfer shear a region delivers to the lines at its
+ends, are forces in the member of that line in the same case, so they are added to the
+line's collector diagram station by station (:func:`line_collectors_with_transfer`) and take
+Ω0 with it. A region's support chord is already the total chord force there (main M/d plus
+the transfer reaction it collects, see :mod:`.transfer`), so it is enveloped with the chord
+role of the member on its line, not added to it. The transfer items stay listed on their own.
 """
 
 from __future__ import annotations

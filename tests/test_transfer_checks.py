@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 from test_beam_analogy_sides import EXAMPLE_4_1
 
+from planshear.postprocess.checks import _transfer_zone_shear, zone_regions
 from planshear.postprocess.envelope import Governing, member_envelopes
 from planshear.run import analyze
 
@@ -283,3 +284,27 @@ def test_strut_and_torsional_drag_on_one_line_add_station_by_station(plan_from):
     expected = np.interp(y, own.stations, own.collector) + np.interp(y, strut.stations, strut.total)
     np.testing.assert_allclose(np.interp(y, t, total), expected, rtol=1e-9, atol=1e-6)
     assert parts == ("TD B-A collector on 2",)
+
+
+def test_reviewer_plan_zone_demand_by_hand_statics(plan_from):
+    """The invented T-shaped plan, flexible method, E+x: the stem chord force at line B is
+    F = M_B / 40 ft (the stem's depth); the transfer region A–B (L = 50 ft) spans x = 0–120
+    ft, loaded by the couple F × 40 ft, so its reactions are F·40/120 and the transfer shear
+    over x = 40–80 ft is (F − F·40/120)/L (hand statics of a simple beam). With the main
+    unit shear next to line A (the shear line A's walls take from the diaphragm / 120 ft),
+    the net is 0.2273 + 0.1653 = 0.3926 kip/ft; × 0.7 (ASD, ASCE 7-16 §2.4.5) = 0.275 kip/ft
+    against 300 plf, D/C 0.92, above the 0.199 kip/ft the semi-rigid model gives."""
+    result = analyze(plan_from(QUARRY), semirigid=False)
+    case = result.methods["flexible"].cases["E+x"]
+    td = next(t for t in case.extra["transfer"] if t.name == "TD B-A")
+    force = abs(td.chord_forces[0][2])
+    main = case.lines["A"].unit_shear_right
+    net = main + (force - force * 40 / 120) / (50 * FT)
+    assert net / (KIP / FT) == pytest.approx(0.3926, abs=5e-5)  # the reviewer's value, 4 digits
+    plan = result.plan
+    value, where = _transfer_zone_shear(case, zone_regions(plan)["main"], plan)
+    assert value == pytest.approx(net, rel=1e-5)  # read 2e-7 × the span inside y = 0
+    assert "TD B-A, x = 40–80 ft, at y = 0 ft" in where
+    # Without the semi-rigid run every assumption is allowed: the rigid ±ecc cases may govern.
+    check = _check(result.checks, "diaphragm outside the zones", "unit shear")
+    assert check.demand >= 0.7 * net * (1 - 1e-5) and "TD B-A" in check.note
