@@ -140,38 +140,49 @@ def _position(s: float, ends: tuple[float, float] = (np.nan, np.nan)) -> float:
 def _transfer_zone_shear(result, region, plan: Plan) -> tuple[float, str]:
     """(largest |net unit shear| (N/m) where a transfer region of ``result`` lies in
     ``region``, where it is). The net shear is the main span unit shear V(s)/ℓ(s) plus the
-    region's transfer shear of each band across the span (see
-    :mod:`planshear.postprocess.transfer`; both with the sign of V), read over the span
-    range of the part of the band inside the region: at the analogy's stations and just
+    transfer shear of each band across the span (see :mod:`planshear.postprocess.transfer`;
+    both with the sign of V); where regions of the case overlap (notches facing each other
+    across one bay) their transfer shears add (superposition). Read over the span range of
+    each cell of constant transfer shear inside the zone: at the analogy's stations and just
     inside both ends, as :func:`_idealized_zone_shear`."""
     best, where = 0.0, ""
     spans = {axis: (stations, unit_shear_along(shear, length))
              for axis, stations, shear, length in result.extra.get("span_shear", ())}
     scale, unit = plan.length_scale, plan.length_unit
-    for td in result.extra.get("transfer", ()):
-        if td.axis not in spans:
-            continue
-        stations, v = spans[td.axis]
-        s_index = 1 if td.axis == "x" else 0
+    tds = [td for td in result.extra.get("transfer", ()) if td.axis in spans]
+    for axis in sorted({td.axis for td in tds}):
+        stations, v = spans[axis]
+        s_index = 1 if axis == "x" else 0
         t_index = 1 - s_index
         inset = 2e-7 * float(np.ptp(stations))
-        s_lo, s_hi = td.s_range
-        for t0, t1, tau in td.shears:
-            corners = np.zeros((4, 2))
-            corners[:, s_index] = [s_lo, s_hi, s_hi, s_lo]
-            corners[:, t_index] = [t0, t0, t1, t1]
-            part = shapely.Polygon(corners).intersection(region)
-            for lo, hi in _s_intervals(part, s_index):
-                inside = (stations > lo) & (stations < hi)
-                ends = np.array([lo + inset, hi - inset])
-                s_all = np.concatenate([stations[inside], ends])
-                net = np.concatenate([v[inside], np.interp(ends, stations, v)]) + tau
-                k = int(np.argmax(np.abs(net)))
-                if abs(net[k]) > best:
-                    best = float(abs(net[k]))
-                    where = (f"net unit shear (span V/ℓ + transfer shear) in transfer region {td.name}, "
-                             f"{'xy'[t_index]} = {t0 / scale:.4g}–{t1 / scale:.4g} {unit}, at "
-                             f"{'xy'[s_index]} = {_position(s_all[k], (lo, hi)) / scale:.4g} {unit}")
+        bands = [(td.name, *sorted(td.s_range), t0, t1, tau) for td in tds if td.axis == axis
+                 for t0, t1, tau in td.shears]
+        s_edges = np.unique([b[k] for b in bands for k in (1, 2)])
+        t_edges = np.unique([b[k] for b in bands for k in (3, 4)])
+        for s0, s1 in zip(s_edges[:-1], s_edges[1:], strict=True):
+            for t0, t1 in zip(t_edges[:-1], t_edges[1:], strict=True):
+                sm, tm = 0.5 * (s0 + s1), 0.5 * (t0 + t1)
+                here = [b for b in bands if b[1] <= sm <= b[2] and b[3] <= tm <= b[4]]
+                if not here:
+                    continue
+                tau = sum(b[5] for b in here)
+                corners = np.zeros((4, 2))
+                corners[:, s_index] = [s0, s1, s1, s0]
+                corners[:, t_index] = [t0, t0, t1, t1]
+                part = shapely.Polygon(corners).intersection(region)
+                for lo, hi in _s_intervals(part, s_index):
+                    inside = (stations > lo) & (stations < hi)
+                    ends = np.array([lo + inset, hi - inset])
+                    s_all = np.concatenate([stations[inside], ends])
+                    net = np.concatenate([v[inside], np.interp(ends, stations, v)]) + tau
+                    k = int(np.argmax(np.abs(net)))
+                    if abs(net[k]) > best:
+                        best = float(abs(net[k]))
+                        names = " + ".join(dict.fromkeys(b[0] for b in here))
+                        where = (f"net unit shear (span V/ℓ + transfer shear) in transfer region"
+                                 f"{'s' if len(here) > 1 else ''} {names}, "
+                                 f"{'xy'[t_index]} = {t0 / scale:.4g}–{t1 / scale:.4g} {unit}, at "
+                                 f"{'xy'[s_index]} = {_position(s_all[k], (lo, hi)) / scale:.4g} {unit}")
     return best, where
 
 

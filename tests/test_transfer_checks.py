@@ -308,3 +308,32 @@ def test_reviewer_plan_zone_demand_by_hand_statics(plan_from):
     # Without the semi-rigid run every assumption is allowed: the rigid ±ecc cases may govern.
     check = _check(result.checks, "diaphragm outside the zones", "unit shear")
     assert check.demand >= 0.7 * net * (1 - 1e-5) and "TD B-A" in check.note
+
+
+def test_overlapping_transfer_regions_add_their_shears(plan_from):
+    """Load along y on the invented T plan: the stem's chord (line B) is interrupted at both
+    line 2 and line 3, so regions TD 2-3 and TD 3-2 cover the same bay (x = 40–80 ft).
+    Superposition (linear statics): in the stem zone (y = 50–90 ft) the net unit shear is
+    V(x)/ℓ(x) + τ(TD 2-3) + τ(TD 3-2), the two regions' shears of the band through y = 70 ft;
+    the zone demand is its largest magnitude over the bay (here at least one of the regions
+    alone would give a different value)."""
+    from planshear.idealized import rigid_analysis
+    from planshear.loads import expand_load_cases
+    from planshear.results import unit_shear_along
+
+    plan = plan_from(QUARRY)
+    case = rigid_analysis(plan, expand_load_cases(plan)).cases["E+y"]
+    tds = {td.name: td for td in case.extra["transfer"]}
+    assert set(tds) == {"TD 2-3", "TD 3-2"}
+    taus = [next(v for a, b, v in td.shears if a <= 70 * FT <= b) for td in tds.values()]
+    axis, stations, shear, length = next(s for s in case.extra["span_shear"] if s[0] == "y")
+    v = unit_shear_along(shear, length)
+    inside = (stations > 40 * FT) & (stations < 80 * FT)
+    ends = np.array([40, 80]) * FT + np.array([1, -1]) * 2e-7 * np.ptp(stations)
+    main = np.concatenate([v[inside], np.interp(ends, stations, v)])
+    expected = np.abs(main + sum(taus)).max()
+    alone = [np.abs(main + t).max() for t in taus]
+    assert all(abs(a - expected) > 1e-3 * expected for a in alone)  # the sum matters here
+    value, where = _transfer_zone_shear(case, zone_regions(plan)["stem"], plan)
+    assert value == pytest.approx(expected, rel=1e-9)
+    assert "TD 2-3 + TD 3-2" in where
