@@ -40,6 +40,7 @@ from planshear.results import MethodResult, unit_shear_along
 
 from .envelope import Envelope, Governing, member_envelopes
 from .sections import _locate
+from .transfer import line_collectors_with_transfer
 
 __all__ = ["Check", "DesignChecks", "design_checks", "zone_regions", "zone_unit_shear", "splice_forces", "Splice"]
 
@@ -372,8 +373,9 @@ def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope:
                   splices: list[tuple[str, np.ndarray]]) -> list[Splice]:
     """The member force at each splice (name, point (x, y) in m), from the diagrams the
     envelope uses, over the design cases: on a grid line its collector diagram (flexible,
-    rigid) or bar force (semi-rigid; the collector role in the cases along the line, the chord
-    role across it), and the chord diagram of every outline edge through the point (in the
+    rigid; with the transfer regions on the line, :func:`line_collectors_with_transfer`) or
+    bar force (semi-rigid; the collector role in the cases along the line, the chord role
+    across it), and the chord diagram of every outline edge through the point (in the
     semi-rigid model only across the edge where the edge lies on a grid line, whose bar force
     that is). Fed from the plan's ``[[splice]]`` entries (``Plan.splices``) when present."""
     layout = envelope.layout
@@ -409,10 +411,14 @@ def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope:
                     continue
                 values = []
                 line = None if grid_line is None else result.lines.get(grid_line.name)
-                if line is not None and len(line.stations) and line.stations[0] - tol <= t <= line.stations[-1] + tol:
+                stations, collector = (None, None) if line is None else (line.stations, line.collector)
+                if grid_line is not None and not semi:  # transfer regions on the line are part of its member
+                    stations, collector, _ = line_collectors_with_transfer(result.extra, result.lines).get(
+                        grid_line.name, (stations, collector, ()))
+                if stations is not None and len(stations) and stations[0] - tol <= t <= stations[-1] + tol:
                     along = not semi or grid_line.parallel_to in (None, case.axis)
                     factor = case.collector_rule.factor if along else 1.0
-                    values.append(factor * float(np.interp(t, line.stations, line.collector)))
+                    values.append(factor * float(np.interp(t, stations, collector)))
                 for key, s, on_line, axis in edges:
                     chord = result.chords.get(key)
                     if chord is None or not len(chord.stations) or (semi and on_line and axis == case.axis):

@@ -337,3 +337,14 @@ def test_overlapping_transfer_regions_add_their_shears(plan_from):
     value, where = _transfer_zone_shear(case, zone_regions(plan)["stem"], plan)
     assert value == pytest.approx(expected, rel=1e-9)
     assert "TD 2-3 + TD 3-2" in where
+
+
+def test_splice_on_a_line_with_a_transfer_region_carries_its_force(plan_from):
+    """A splice on line 1 at B (x = 0, y = 40 ft) of Malone & Rice (2012), Example 4.1: the
+    transverse collector there carries the transfer beam's moment / L = 1012.5 × 40 / 15 =
+    2700 lb (its wall runs the full line, so the line's own collector is nil); the splice
+    force is that, in both senses (the edge load is taken as it is: W+y and W−y)."""
+    splice = '\n[[splice]]\nname = "S1"\nat = [0, 40]\nstiffness = "500 kip/in"\n'
+    (entry,) = analyze(plan_from(_with(EXAMPLE_4_1, tail=splice)), semirigid=False).to_json()["splice_forces"]
+    assert entry["tension"]["value"] * 1000 == pytest.approx(2700.0, rel=1e-6)
+    assert entry["compression"]["value"] * 1000 == pytest.approx(-2700.0, rel=1e-6)
