@@ -28,11 +28,12 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import shapely
 
 from planshear.mesh import Mesh
 from planshear.plan import Plan
 
-__all__ = ["CollectorSegment", "WallPiece", "CollectorLayout", "collector_layout"]
+__all__ = ["CollectorSegment", "WallPiece", "CollectorLayout", "collector_layout", "bar_extents"]
 
 KINDS = ("none", "implied", "chord", "declared")
 
@@ -127,3 +128,47 @@ def collector_layout(plan: Plan, mesh: Mesh) -> CollectorLayout:
         if np.any(mask):
             implied[grid_line.name] = line.edges[mask]
     return CollectorLayout(tuple(pieces), implied, EA, source)
+
+
+def _merge(spans: list[tuple[float, float]], tol: float) -> tuple[tuple[float, float], ...]:
+    out: list[list[float]] = []
+    for a, b in sorted(spans):
+        if out and a <= out[-1][1] + tol:
+            out[-1][1] = max(out[-1][1], b)
+        else:
+            out.append([a, b])
+    return tuple((a, b) for a, b in out)
+
+
+def bar_extents(plan: Plan) -> dict[str, tuple[tuple[float, float], ...]]:
+    """Where along each grid line (t0, t1 in m, merged) the semi-rigid model will have a
+    bar, from the plan alone, by the rule of :func:`collector_layout` (module docstring):
+    every declared ``[[member]]``; every outline edge on the line when ``chord_EA`` is
+    given (the outline chord bar); and every wall piece (the line over the diaphragm, split
+    at gaps outside the outline or in an opening) that carries a wall, when an implied
+    collector EA exists (``collector_EA``, else ``chord_EA``). For stages before the mesh
+    (the idealized methods' cautions), so that they state what the model will contain."""
+    extent = float(np.ptp(plan.outline, axis=0).max())
+    tol = 1e-7 * extent
+    implied, _ = plan.implied_collector_EA
+    outline = np.asarray(plan.outline)
+    corners = np.vstack([outline, outline[:1]])
+    out: dict[str, tuple[tuple[float, float], ...]] = {}
+    for g in plan.grid_lines:
+        spans = [(min(m.t_from, m.t_to), max(m.t_from, m.t_to)) for m in plan.members if m.line == g.name]
+        # Outline edges with both ends on the line: distance of the corners from it, t along it.
+        normal = np.array([-g.direction[1], g.direction[0]])
+        off = np.abs((corners - g.origin) @ normal) <= tol
+        t = (corners - g.origin) @ g.direction
+        if plan.chord_EA is not None:
+            spans += [(min(t[i], t[i + 1]), max(t[i], t[i + 1])) for i in np.flatnonzero(off[:-1] & off[1:])]
+        walls = [w for w in plan.walls if w.line == g.name]
+        if implied is not None and walls and g.t_max > g.t_min:
+            cut = shapely.intersection(plan.region, g.segment(g.t_min, g.t_max))
+            parts = [p for p in getattr(cut, "geoms", [cut]) if p.geom_type == "LineString" and p.length > tol]
+            pieces = _merge([tuple(sorted(((np.asarray(p.coords) - g.origin) @ g.direction)[[0, -1]])) for p in parts],
+                            tol)
+            spans += [(a, b) for a, b in pieces if any(w.t_from >= a - tol and w.t_to <= b + tol for w in walls)]
+        if spans:
+            out[g.name] = _merge(spans, tol)
+    return out

@@ -11,10 +11,14 @@ factor of the design basis applied.
   crosses the zone. Semi-rigid: the finite-element shear N_xy averaged along the part of
   each section that lies in the zone (never a nodal or element peak: peaks at re-entrant
   corners and wall ends are singular), at stations every mesh size across the zone.
+  Where a transfer region (flexible, rigid; :mod:`planshear.postprocess.transfer`) lies in
+  the zone, the net unit shear there (span V/ℓ + the region's transfer shear) counts too;
+  the check's note says where the governing value is.
 - **Walls**: the design force, or its unit shear force / length, against the capacity.
 - **Chords and collectors** (members by grid line and bay): the member's design tension and
   compression, each the larger of the chord role and the collector role with ASCE 7-16
-  §12.10.2.1 (Ω0 where the case requires it).
+  §12.10.2.1 (Ω0 where the case requires it). Transfer regions on the member's grid line
+  are part of it (:attr:`Envelope.transfer_parts`; the note names them).
 - **Splices**: the force at a declared chord splice from the same diagrams
   (:func:`splice_forces`).
 
@@ -36,6 +40,7 @@ from planshear.results import MethodResult, unit_shear_along
 
 from .envelope import Envelope, Governing, member_envelopes
 from .sections import _locate
+from .transfer import line_collectors_with_transfer
 
 __all__ = ["Check", "DesignChecks", "design_checks", "zone_regions", "zone_unit_shear", "splice_forces", "Splice"]
 
@@ -123,6 +128,65 @@ def _idealized_zone_shear(result, region) -> tuple[float, float]:
     return best, at
 
 
+def _position(s: float, ends: tuple[float, float] = (np.nan, np.nan)) -> float:
+    """A station read just inside a range end (m) shown as that end (the inset is 2e-7 of the span)."""
+    lo, hi = ends
+    width = max(abs(hi - lo), 1e-9) if np.isfinite(lo) else 0.0
+    for end in (lo, hi):
+        if np.isfinite(end) and abs(s - end) <= 1e-6 * width:
+            return float(end)
+    return float(s)
+
+
+def _transfer_zone_shear(result, region, plan: Plan) -> tuple[float, str]:
+    """(largest |net unit shear| (N/m) where a transfer region of ``result`` lies in
+    ``region``, where it is). The net shear is the main span unit shear V(s)/ℓ(s) plus the
+    transfer shear of each band across the span (see :mod:`planshear.postprocess.transfer`;
+    both with the sign of V); where regions of the case overlap (notches facing each other
+    across one bay) their transfer shears add (superposition). Read over the span range of
+    each cell of constant transfer shear inside the zone: at the analogy's stations and just
+    inside both ends, as :func:`_idealized_zone_shear`."""
+    best, where = 0.0, ""
+    spans = {axis: (stations, unit_shear_along(shear, length))
+             for axis, stations, shear, length in result.extra.get("span_shear", ())}
+    scale, unit = plan.length_scale, plan.length_unit
+    tds = [td for td in result.extra.get("transfer", ()) if td.axis in spans]
+    for axis in sorted({td.axis for td in tds}):
+        stations, v = spans[axis]
+        s_index = 1 if axis == "x" else 0
+        t_index = 1 - s_index
+        inset = 2e-7 * float(np.ptp(stations))
+        bands = [(td.name, *sorted(td.s_range), t0, t1, tau) for td in tds if td.axis == axis
+                 for t0, t1, tau in td.shears]
+        s_edges = np.unique([b[k] for b in bands for k in (1, 2)])
+        t_edges = np.unique([b[k] for b in bands for k in (3, 4)])
+        for s0, s1 in zip(s_edges[:-1], s_edges[1:], strict=True):
+            for t0, t1 in zip(t_edges[:-1], t_edges[1:], strict=True):
+                sm, tm = 0.5 * (s0 + s1), 0.5 * (t0 + t1)
+                here = [b for b in bands if b[1] <= sm <= b[2] and b[3] <= tm <= b[4]]
+                if not here:
+                    continue
+                tau = sum(b[5] for b in here)
+                corners = np.zeros((4, 2))
+                corners[:, s_index] = [s0, s1, s1, s0]
+                corners[:, t_index] = [t0, t0, t1, t1]
+                part = shapely.Polygon(corners).intersection(region)
+                for lo, hi in _s_intervals(part, s_index):
+                    inside = (stations > lo) & (stations < hi)
+                    ends = np.array([lo + inset, hi - inset])
+                    s_all = np.concatenate([stations[inside], ends])
+                    net = np.concatenate([v[inside], np.interp(ends, stations, v)]) + tau
+                    k = int(np.argmax(np.abs(net)))
+                    if abs(net[k]) > best:
+                        best = float(abs(net[k]))
+                        names = " + ".join(dict.fromkeys(b[0] for b in here))
+                        where = (f"net unit shear (span V/ℓ + transfer shear) in transfer region"
+                                 f"{'s' if len(here) > 1 else ''} {names}, "
+                                 f"{'xy'[t_index]} = {t0 / scale:.4g}–{t1 / scale:.4g} {unit}, at "
+                                 f"{'xy'[s_index]} = {_position(s_all[k], (lo, hi)) / scale:.4g} {unit}")
+    return best, where
+
+
 def zone_unit_shear(plan: Plan, mesh, membrane: np.ndarray, axes: list[str], region, spacing: float,
                     cells: tuple | None = None) -> np.ndarray:
     """Finite-element unit shear N_xy (N/m) averaged along the part of each section that lies
@@ -165,18 +229,23 @@ def zone_unit_shear(plan: Plan, mesh, membrane: np.ndarray, axes: list[str], reg
     return out
 
 
-def _largest(current: Governing | None, value: float, assumption: str, case: LoadCase) -> Governing | None:
+def _largest(current: tuple[Governing, str] | None, value: float, assumption: str, case: LoadCase,
+             where: str = "") -> tuple[Governing, str] | None:
+    """(governing demand, where it is) after seeing ``value`` (N/m, before the combination factor)."""
     value = abs(value) * case.combination.diaphragm
-    if current is None or value > current.value:
-        return Governing(value, assumption, case.name, case.combination.diaphragm)
+    if current is None or value > current[0].value:
+        return Governing(value, assumption, case.name, case.combination.diaphragm), where
     return current
 
 
 def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[LoadCase, ...], envelope: Envelope,
-                  semirigid) -> dict[str, Governing | None]:
+                  semirigid) -> dict[str, tuple[Governing, str] | None]:
+    """Zone → (largest design unit shear, where it is). Flexible and rigid: the span's V/ℓ,
+    and where a transfer region lies in the zone the net unit shear there (main + transfer,
+    :func:`_transfer_zone_shear`), the larger governs; semi-rigid: N_xy along sections."""
     regions = zone_regions(plan)
     by_name = {c.name: c for c in cases}
-    demands: dict[str, Governing | None] = dict.fromkeys(regions)
+    demands: dict[str, tuple[Governing, str] | None] = dict.fromkeys(regions)
     for assumption, method in methods.items():
         if assumption.startswith("semirigid"):
             continue  # below, from the finite-element membrane forces
@@ -185,8 +254,15 @@ def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
             if assumption not in envelope.allowed[case.axis]:
                 continue
             for zone, region in regions.items():
-                value, _ = _idealized_zone_shear(result, region)
-                demands[zone] = _largest(demands[zone], value, assumption, case)
+                value, at = _idealized_zone_shear(result, region)
+                s_name = "y" if case.axis == "x" else "x"
+                span = result.extra.get("span_shear", ())
+                ends = [(float(st[0]), float(st[-1])) for _, st, _, _ in span if len(st)]
+                demands[zone] = _largest(demands[zone], value, assumption, case,
+                                         f"span V/ℓ at {s_name} = {_position(at, *ends[:1]) / plan.length_scale:.4g} "
+                                         f"{plan.length_unit}")
+                net, where = _transfer_zone_shear(result, region, plan)
+                demands[zone] = _largest(demands[zone], net, assumption, case, where)
     if semirigid is not None and "semirigid" in methods:
         names = list(methods["semirigid"].cases)
         axes = [by_name[n].axis for n in names]
@@ -195,7 +271,8 @@ def _zone_demands(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
         for zone, region in regions.items():
             values = zone_unit_shear(plan, semirigid.mesh, semirigid.membrane, axes, region, plan.mesh.size, cells)
             for j in np.flatnonzero(allowed):
-                demands[zone] = _largest(demands[zone], float(values[j]), "semirigid", by_name[names[j]])
+                demands[zone] = _largest(demands[zone], float(values[j]), "semirigid", by_name[names[j]],
+                                         "N_xy averaged along a section in the zone")
     return demands
 
 
@@ -214,11 +291,14 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
     places: dict[str, object] = {}
     regions = zone_regions(plan)
     zone_caps = {**({MAIN: caps.diaphragm} if caps.diaphragm is not None else {}), **caps.zones}
-    for zone, governing in _zone_demands(plan, methods, cases, envelope, semirigid).items():
+    for zone, found in _zone_demands(plan, methods, cases, envelope, semirigid).items():
         item = "diaphragm outside the zones" if zone == MAIN else f"zone {zone}"
+        governing, where = found if found is not None else (None, "")
         checks.append(Check("zone", item, "unit shear", 0.0 if governing is None else governing.value,
                             zone_caps.get(zone), governing,
-                            "flexible/rigid: V / cut length along the span; semi-rigid: N_xy averaged along each section in the zone"))
+                            "flexible/rigid: V / cut length along the span, and the net unit shear (main + transfer) "
+                            "in transfer regions; semi-rigid: N_xy averaged along each section in the zone"
+                            + (f"; governs: {where}" if where else "")))
         places[item] = regions[zone]
     by_id = {w.id: w for w in plan.walls}
     for wall_id, slots in envelope.walls.items():
@@ -254,12 +334,26 @@ def design_checks(plan: Plan, methods: dict[str, MethodResult], cases: tuple[Loa
                 continue
             omega = role == "collector" and governing in (m.collector_tension_omega, m.collector_compression_omega)
             checks.append(Check("member", name, quantity, abs(governing.value), capacity, governing,
-                                f"{role} role" + (" with ASCE 7-16 §12.10.2.1" if omega else "")))
+                                f"{role} role" + (" with ASCE 7-16 §12.10.2.1" if omega else "")
+                                + _transfer_note(envelope, m.member.line, role)))
         if np.isfinite(m.member.start[0]):
             places[name] = shapely.LineString([m.member.start, m.member.end])
     order = {"fails": 0, "ok": 1, "no capacity": 2}
     checks.sort(key=lambda c: (order[c.status], -(c.ratio or 0.0)))
     return DesignChecks(tuple(checks), plan.design_basis, places)
+
+
+def _transfer_note(envelope: Envelope, line: str | None, role: str) -> str:
+    """What a member's role includes from transfer regions on its grid line (see
+    :attr:`planshear.postprocess.envelope.Envelope.transfer_parts`), for the check's note."""
+    parts = envelope.transfer_parts.get(line, {}) if line is not None else {}
+    if role == "collector" and parts.get("collector"):
+        return ("; includes " + ", ".join(parts["collector"]) + " (transfer forces added to the line's collector "
+                "force station by station, same case)")
+    if role == "chord" and parts.get("chord"):
+        return ("; enveloped with " + ", ".join(parts["chord"]) + " (each the total chord force in its transfer "
+                "region, main chord + transfer share, not added again)")
+    return ""
 
 
 @dataclass(frozen=True)
@@ -279,8 +373,9 @@ def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope:
                   splices: list[tuple[str, np.ndarray]]) -> list[Splice]:
     """The member force at each splice (name, point (x, y) in m), from the diagrams the
     envelope uses, over the design cases: on a grid line its collector diagram (flexible,
-    rigid) or bar force (semi-rigid; the collector role in the cases along the line, the chord
-    role across it), and the chord diagram of every outline edge through the point (in the
+    rigid; with the transfer regions on the line, :func:`line_collectors_with_transfer`) or
+    bar force (semi-rigid; the collector role in the cases along the line, the chord role
+    across it), and the chord diagram of every outline edge through the point (in the
     semi-rigid model only across the edge where the edge lies on a grid line, whose bar force
     that is). Fed from the plan's ``[[splice]]`` entries (``Plan.splices``) when present."""
     layout = envelope.layout
@@ -316,10 +411,14 @@ def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope:
                     continue
                 values = []
                 line = None if grid_line is None else result.lines.get(grid_line.name)
-                if line is not None and len(line.stations) and line.stations[0] - tol <= t <= line.stations[-1] + tol:
+                stations, collector = (None, None) if line is None else (line.stations, line.collector)
+                if grid_line is not None and not semi:  # transfer regions on the line are part of its member
+                    stations, collector, _ = line_collectors_with_transfer(result.extra, result.lines).get(
+                        grid_line.name, (stations, collector, ()))
+                if stations is not None and len(stations) and stations[0] - tol <= t <= stations[-1] + tol:
                     along = not semi or grid_line.parallel_to in (None, case.axis)
                     factor = case.collector_rule.factor if along else 1.0
-                    values.append(factor * float(np.interp(t, line.stations, line.collector)))
+                    values.append(factor * float(np.interp(t, stations, collector)))
                 for key, s, on_line, axis in edges:
                     chord = result.chords.get(key)
                     if chord is None or not len(chord.stations) or (semi and on_line and axis == case.axis):

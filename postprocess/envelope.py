@@ -22,6 +22,14 @@ chord on a grid line enters the chord role only in the cases across it (in the c
 it the same bar is the line's collector). The idealized methods keep their roles apart by
 construction (collector = running sum along the line, chord = M/depth) and are taken as
 they are. Members are named by grid line and bay (:func:`member_layout`).
+
+Transfer regions (flexible, rigid) act on members that lie on grid lines: the strut that
+extends an interrupted chord, and the transfer shear a region delivers to the lines at its
+ends, are forces in the member of that line in the same case, so they are added to the
+line's collector diagram station by station (:func:`line_collectors_with_transfer`) and take
+Ω0 with it. A region's support chord is already the total chord force there (main M/d plus
+the transfer reaction it collects, see :mod:`.transfer`), so it is enveloped with the chord
+role of the member on its line, not added to it. The transfer items stay listed on their own.
 """
 
 from __future__ import annotations
@@ -36,7 +44,7 @@ from planshear.results import MethodResult
 
 from .beam_analogy import line_sides, merge_intervals, running_axial_force
 from .classify import Classification
-from .transfer import transfer_peaks
+from .transfer import line_collectors_with_transfer, transfer_peaks
 
 __all__ = ["Governing", "Envelope", "MemberName", "MemberLayout", "MemberEnvelope", "build_envelope", "compare_walls",
            "member_envelopes", "member_layout", "with_irregularity_increase"]
@@ -65,6 +73,10 @@ class Envelope:
     # governing case's force, the value without the Exception 1 cap, the cap, which governed (N)
     collector_rules: dict[str, dict] = field(default_factory=dict)
     layout: MemberLayout | None = None  # the plan's members by grid line and bay (roles kept apart when given)
+    # grid line → {"collector": transfer items whose force the line's collector includes (added
+    # station by station), "chord": transfer-region chords on the line (each the total chord force
+    # there, main + transfer share, enveloped with the line's chord role, not added to it)}
+    transfer_parts: dict[str, dict[str, tuple[str, ...]]] = field(default_factory=dict)
 
 
 def _allowed(classification: Classification | None, methods: dict[str, MethodResult]) -> dict[str, tuple[str, ...]]:
@@ -129,6 +141,8 @@ def build_envelope(
     reactions: dict[str, dict[str, Governing | None]] = {}
     collectors: dict[str, dict[str, Governing | None]] = {}
     chords: dict[str, dict[str, Governing | None]] = {}
+    transfer_parts: dict[str, dict[str, list[str]]] = {}
+
     def better(current, value, assumption, case_name, sign=0.0, factor=1.0):
         """Like _better, with ``value`` multiplied by ``factor`` (the combination factor)."""
         return _better(current, factor * value, assumption, case_name, by_name, sign, factor)
@@ -146,6 +160,16 @@ def build_envelope(
         slot[prefix + "compression"] = better(slot.get(prefix + "compression"), factor * bottom, assumption, case_name,
                                               -1.0, combination)
 
+    def collect(c: dict, values, peak: float, assumption: str, case_name: str, design: bool, omega: float,
+                fd: float) -> None:
+        """A collector diagram (N) of one case into its slots, with Ω0 (``omega``) and the combination factor."""
+        c["information"] = better(c["information"], peak, assumption, case_name, factor=fd)
+        if design:
+            c["design"] = better(c["design"], peak, assumption, case_name, factor=fd)
+            c["with_overstrength"] = better(c["with_overstrength"], omega * peak, assumption, case_name, factor=fd)
+            extremes(c, values, assumption, case_name, combination=fd)
+            extremes(c, values, assumption, case_name, "with_overstrength_", omega, fd)
+
     for assumption, method in methods.items():
         for case_name, result in method.cases.items():
             case = by_name[case_name]
@@ -162,6 +186,25 @@ def build_envelope(
                 if design:
                     slot["design"] = better(slot["design"], force, assumption, case_name, factor=fv)
             semirigid = assumption.startswith("semirigid") and layout is not None
+            # Flexible, rigid: the collector of a line that a transfer region acts on carries the
+            # region's share and the strut extending an offset chord too (same member, same case).
+            with_transfer = ({} if assumption.startswith("semirigid")
+                             else line_collectors_with_transfer(result.extra, result.lines))
+            for name, (_, _, parts) in with_transfer.items():
+                slot = transfer_parts.setdefault(name, {"collector": [], "chord": []})["collector"]
+                slot += [p for p in parts if p not in slot]
+            for td in result.extra.get("transfer", ()):
+                for strut in td.struts:
+                    if strut.role == "support" and strut.line is not None:
+                        slot = transfer_parts.setdefault(strut.line, {"collector": [], "chord": []})["chord"]
+                        key = f"{td.name} chord on {strut.label}"
+                        slot += [key] if key not in slot else []
+
+            for name in with_transfer.keys() - result.lines.keys():  # e.g. a strut on a line across the load
+                _, values, _ = with_transfer[name]
+                c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
+                collect(c, values, float(values[np.argmax(np.abs(values))]) if len(values) else 0.0,
+                        assumption, case_name, design, omega, fd)
             for name, line in result.lines.items():
                 r = reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
@@ -181,13 +224,12 @@ def build_envelope(
                                                             factor=fd)
                             extremes(c, combined, assumption, case_name, "with_overstrength_", 1.0, fd)
                     continue
-                c["information"] = better(c["information"], line.peak, assumption, case_name, factor=fd)
-                if design:
-                    c["design"] = better(c["design"], line.peak, assumption, case_name, factor=fd)
-                    c["with_overstrength"] = better(c["with_overstrength"], omega * line.peak, assumption, case_name,
-                                                    factor=fd)
-                    extremes(c, line.collector, assumption, case_name, combination=fd)
-                    extremes(c, line.collector, assumption, case_name, "with_overstrength_", omega, fd)
+                if name in with_transfer:
+                    values = with_transfer[name][1]
+                    collect(c, values, float(values[np.argmax(np.abs(values))]) if len(values) else 0.0,
+                            assumption, case_name, design, omega, fd)
+                else:
+                    collect(c, line.collector, line.peak, assumption, case_name, design, omega, fd)
             # Transfer diaphragms (flexible, rigid): their collectors and chords are enveloped too.
             extra_collectors, extra_chords = transfer_peaks(result.extra)
             for name, peak in extra_collectors:
@@ -241,7 +283,8 @@ def build_envelope(
         rules[name] = {"clause": "ASCE 7-16 §12.10.2.1", "governs": rule.governs, "factor": rule.factor,
                        "without_cap": at_case * rule.uncapped,
                        "cap": None if rule.cap is None else at_case * rule.cap, "note": rule.note}
-    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis, rules, layout)
+    parts = {line: {role: tuple(names) for role, names in roles.items()} for line, roles in sorted(transfer_parts.items())}
+    return Envelope(allowed, walls, reactions, collectors, chords, cautions, collector_basis, rules, layout, parts)
 
 
 def with_irregularity_increase(envelope: Envelope, factor: float, reason: str) -> Envelope:
@@ -535,6 +578,8 @@ def member_envelopes(envelope: Envelope) -> dict[str, MemberEnvelope]:
         if name not in known_chords:
             named.append((MemberName(name, None, (np.nan, np.nan), (np.nan, np.nan), None, (name,), None), None, (name,)))
     for member, collector, chords in named:
+        if member.line is not None:  # transfer-region chords on the member's line: the same member
+            chords = tuple(chords) + envelope.transfer_parts.get(member.line, {}).get("chord", ())
         c = envelope.collectors.get(collector, {}) if collector else {}
         slots = [envelope.chords.get(k, {}) for k in chords]
         item = MemberEnvelope(

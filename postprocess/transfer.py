@@ -39,6 +39,7 @@ from dataclasses import dataclass
 import numpy as np
 import shapely
 
+from planshear.fem.collectors import bar_extents
 from planshear.loads import ForceField
 from planshear.plan import GridLine, Plan
 
@@ -52,7 +53,8 @@ from .beam_analogy import (
     side_intervals,
 )
 
-__all__ = ["Strut", "NetShear", "TransferDiaphragm", "transfer_diaphragms", "transfer_peaks"]
+__all__ = ["Strut", "NetShear", "TransferDiaphragm", "transfer_diaphragms", "transfer_peaks",
+           "line_collectors_with_transfer", "strut_cautions"]
 
 #: Offset chord forces below this fraction of the largest section shear (N per N) are
 #: round-off: no transfer diaphragm is formed for them.
@@ -342,15 +344,64 @@ def transfer_peaks(extra: dict) -> tuple[list[tuple[str, float]], list[tuple[str
     return collectors, chords
 
 
+def line_collectors_with_transfer(extra: dict, lines: dict) -> dict[str, tuple[np.ndarray, np.ndarray, tuple[str, ...]]]:
+    """Collector force of the member on each grid line that a transfer region of this case
+    acts on, the region's forces included (grid line → (t m, N tension +, names of the
+    transfer items included as in :func:`transfer_peaks`)).
+
+    Statics (superposition, same member, same case): the line's own collector diagram
+    (``lines``, the case's result.lines, t as in the plan file), plus for each region that
+    ends on the line its transfer-shear share (``td.collectors[line]`` is the line's diagram
+    recomputed with it; its difference from the line's own diagram is the share, so two
+    regions ending on one line both count), plus the strut extending an offset chord along
+    the line (zero outside the region). Diagrams are read just left and right of every
+    station (± 1e-9 × the stations' extent) so that jumps at repeated stations are kept."""
+    tds = extra.get("transfer", ())
+    if not tds:
+        return {}
+    base = {name: (np.asarray(d.stations, dtype=float), np.asarray(d.collector, dtype=float))
+            for name, d in lines.items()}
+    shares: dict[str, list[tuple[np.ndarray, np.ndarray, bool]]] = {}  # (t, N, is a recomputed line diagram)
+    names: dict[str, list[str]] = {}
+    for td in tds:
+        for line, d in td.collectors.items():
+            shares.setdefault(line, []).append((np.asarray(d.stations, dtype=float), np.asarray(d.force), True))
+            names.setdefault(line, []).append(f"{line} with {td.name}")
+        for strut in td.struts:
+            if strut.role == "offset chord" and strut.line is not None and len(strut.stations):
+                shares.setdefault(strut.line, []).append((np.asarray(strut.stations), np.asarray(strut.total), False))
+                names.setdefault(strut.line, []).append(f"{td.name} collector on {strut.label}")
+    out = {}
+    for line, parts in shares.items():
+        own = base.get(line)
+        knots = np.unique(np.concatenate([t for t, _, _ in parts] + ([own[0]] if own is not None else [])))
+        delta = 1e-9 * max(float(np.ptp(knots)), 1.0)
+        t = np.sort(np.concatenate([knots - delta, knots + delta]))
+
+        own_force = _read(t, *own) if own is not None else np.zeros_like(t)
+        total = own_force.copy()
+        for stations, force, recomputed in parts:
+            total += _read(t, stations, force) - (own_force if recomputed else 0.0)
+        out[line] = (t, total, tuple(names[line]))
+    return out
+
+
+def _read(t: np.ndarray, stations: np.ndarray, force: np.ndarray) -> np.ndarray:
+    """A diagram at ``t``, zero outside its stations."""
+    return np.interp(t, stations, force, left=0.0, right=0.0) if len(stations) else np.zeros_like(t)
+
+
 def strut_cautions(plan: Plan, methods: dict) -> dict[str, str]:
     """Envelope cautions for the collectors that extend offset chords into transfer
     regions (name as in :func:`transfer_peaks` → text) where the semi-rigid model has no
-    member along that strut: the idealized methods rely on it, the finite-element model
+    bar along that strut (no declared member, outline chord or implied collector over its
+    whole length, :func:`planshear.fem.collectors.bar_extents`): the idealized methods rely on it, the finite-element model
     does not contain it, so its force has no semi-rigid value and the notch wing may be
     modelled without its load path."""
     if "semirigid" not in methods:
         return {}
     scale, unit = plan.length_scale, plan.length_unit
+    bars = bar_extents(plan)  # declared members, outline chords and implied collectors
     cautions: dict[str, str] = {}
     for assumption in ("flexible", "rigid"):
         for result in getattr(methods.get(assumption), "cases", {}).values():
@@ -362,14 +413,15 @@ def strut_cautions(plan: Plan, methods: dict) -> dict[str, str]:
                     if strut.role != "offset chord" or name in cautions:
                         continue
                     covered = strut.line is not None and any(
-                        m.line == strut.line and m.t_from <= s0 + tol and m.t_to >= s1 - tol for m in plan.members)
+                        a <= s0 + tol and b >= s1 - tol for a, b in bars.get(strut.line, ()))
                     if covered:
                         continue
                     where = f"line {strut.label}" if strut.line else f"the offset chord's line ({strut.label})"
                     cautions[name] = (
                         f"the flexible and rigid methods carry the interrupted chord force into transfer region "
                         f"{td.name} through a collector along {where} from {s0 / scale:g} to {s1 / scale:g} {unit}; the "
-                        "semi-rigid model has no member there, so it models neither that load path nor a force for it. "
+                        "semi-rigid model has no bar there (no declared member, outline chord or implied collector "
+                        "over that length), so it models neither that load path nor a force for it. "
                         f'Declare a [[member]] with role = "collector" on that line over that length (on a grid line) '
                         "to model and design it")
     return cautions

@@ -13,6 +13,7 @@ import pytest
 
 from planshear import analyze, load_plan
 from planshear.cli import _print_results, main
+from planshear.plan import parse_plan
 
 ROOT = Path(__file__).parents[1]
 PLANS = sorted((ROOT / "examples").glob("*.toml")) + [ROOT / "planshear" / "data" / "demo.toml"]
@@ -128,20 +129,26 @@ def test_every_number_of_check_has_a_unit(plan, capsys):
 
 
 def test_line_without_walls_or_force_is_left_out(capsys):
-    """Cedar Yard has a grid line (2) with no walls whose collector force is nil in every
-    case: it is not a row of the collector table, the count of such lines is stated once,
-    and the lines with walls are all rows."""
-    plan = load_plan(ROOT / "examples" / "cedar_yard_warehouse_deck.toml")
+    """Cedar Yard with one more grid line (5, x = 200 ft) that has no walls and lies in no
+    transfer region: its collector force is nil in every case, so it is not a row of the
+    collector table, the count of such lines is stated once, and the lines with walls are all
+    rows. Line 2 has no walls either but closes transfer region TD 3-2, whose shear it
+    collects: it is a row."""
+    path = ROOT / "examples" / "cedar_yard_warehouse_deck.toml"
+    text = path.read_text().replace('x = { "1" = 0, "2" = 75, "3" = 150, "4" = 240 }',
+                                    'x = { "1" = 0, "2" = 75, "3" = 150, "5" = 200, "4" = 240 }')
+    assert '"5" = 200' in text
+    plan = parse_plan(text, path.name)
     results = analyze(plan, semirigid=False)
     doc = results.to_json()
     collectors = doc["envelope"]["collectors"]
     with_walls = {w.line for w in plan.walls}
     empty = [n for n, s in collectors.items() if n not in with_walls and s.get("design")
              and abs(s["design"]["value"]) < 0.005 and abs(s["with_overstrength"]["value"]) < 0.005]
-    assert empty == ["2"]
+    assert empty == ["5"]
     _print_results(results, Path("unused"))
     text = capsys.readouterr().out
     names = [re.split(r"\s{2,}", row)[0] for row in _table_rows(text, "collector forces")]
-    assert "2" not in names and with_walls & set(collectors) <= set(names)
+    assert "5" not in names and "2" in names and with_walls & set(collectors) <= set(names)
     assert text.count("without walls and without collector force left out") == 1
-    assert "1 line(s) without walls and without collector force left out: 2" in text
+    assert "1 line(s) without walls and without collector force left out: 5" in text
