@@ -190,6 +190,13 @@ class _Layout:
 def _table_setting(layout: _Layout, table) -> tuple[bool, float, list[str], int]:
     """Orientation, type size and lines of a table: the first setting that fits the width
     without wrapping into more than 1.3 times the lines of the next (wider) setting."""
+    landscape, size = TABLE_SETTINGS[0]
+    chars = int(layout.width(landscape) * 72 / (size * MONO_EM))
+    natural = [max([len(latin(str(h)))] + [len(latin(_plain(r[i]))) for r in table.rows])
+               for i, h in enumerate(table.headers)]
+    if sum(natural) + 3 * (len(natural) - 1) <= chars:  # fits unwrapped: no other setting can do better
+        lines, head = table_lines(table.headers, table.rows, chars)
+        return landscape, size, lines, head
     made = []
     for landscape, size in TABLE_SETTINGS:
         chars = int(layout.width(landscape) * 72 / (size * MONO_EM))
