@@ -348,3 +348,22 @@ def test_splice_on_a_line_with_a_transfer_region_carries_its_force(plan_from):
     (entry,) = analyze(plan_from(_with(EXAMPLE_4_1, tail=splice)), semirigid=False).to_json()["splice_forces"]
     assert entry["tension"]["value"] * 1000 == pytest.approx(2700.0, rel=1e-6)
     assert entry["compression"]["value"] * 1000 == pytest.approx(-2700.0, rel=1e-6)
+
+
+def test_report_diagram_of_a_member_with_transfer_forces_reaches_its_design_value(plan_from):
+    """Malone & Rice (2012), Example 4.1 again: the report draws line B's collector with the
+    struts of its transfer regions (results.json collectors_with_transfer), so the governing
+    diagram's extreme is the envelope's 10,062.5 lb and the marks sit on the curve; line 1's
+    own collector is nil, yet its diagram (2700 lb, the TD 2-1 share) is drawn."""
+    from planshear.report import build_report
+
+    doc = analyze(plan_from(_with(EXAMPLE_4_1)), semirigid=False).to_json()
+    specs = {s.title: s for s in build_report(doc, None, "key").figures("key") if s.draw == "member_diagram_figure"}
+    envelope = doc["envelope"]["collectors"]
+    for line, expected in (("B", 10062.5), ("1", 2700.0)):
+        title = f"Collector force, {envelope[line]['member']}"
+        assert title in specs, sorted(specs)
+        governing = [s for s in specs[title].kwargs["series"] if s["governs"]]
+        extreme = max(abs(v) for s in governing for _, v in s["points"] if v == v)  # NaN: breaks at gaps
+        assert extreme * 1000 == pytest.approx(expected, rel=1e-5)  # kip → lb
+        assert abs(envelope[line]["design"]["value"]) * 1000 == pytest.approx(expected, rel=1e-5)

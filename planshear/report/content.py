@@ -374,6 +374,9 @@ def _member_specs(doc: dict, group: str) -> list[FigureSpec]:
     def diagram(assumption: str, case: str, name: str):
         case_doc = _case_doc(doc, assumption, case)
         if group == "collectors":
+            combined = case_doc.get("collectors_with_transfer", {}).get(name)
+            if combined:  # the line's own diagram with the transfer regions' forces on it
+                return broken_at(combined["diagram"], line_gaps(doc, name))
             data = case_doc.get("lines", {}).get(name)
             return data and broken_at(data["collector"], line_gaps(doc, name))
         data = case_doc.get("chords", {}).get(name)
