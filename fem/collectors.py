@@ -31,7 +31,7 @@ import numpy as np
 import shapely
 
 from planshear.mesh import Mesh
-from planshear.plan import Plan
+from planshear.plan import Plan, merge_intervals
 
 __all__ = ["CollectorSegment", "WallPiece", "CollectorLayout", "collector_layout", "bar_extents"]
 
@@ -130,16 +130,6 @@ def collector_layout(plan: Plan, mesh: Mesh) -> CollectorLayout:
     return CollectorLayout(tuple(pieces), implied, EA, source)
 
 
-def _merge(spans: list[tuple[float, float]], tol: float) -> tuple[tuple[float, float], ...]:
-    out: list[list[float]] = []
-    for a, b in sorted(spans):
-        if out and a <= out[-1][1] + tol:
-            out[-1][1] = max(out[-1][1], b)
-        else:
-            out.append([a, b])
-    return tuple((a, b) for a, b in out)
-
-
 def bar_extents(plan: Plan) -> dict[str, tuple[tuple[float, float], ...]]:
     """Where along each grid line (t0, t1 in m, merged) the semi-rigid model will have a
     bar, from the plan alone, by the rule of :func:`collector_layout` (module docstring):
@@ -166,9 +156,9 @@ def bar_extents(plan: Plan) -> dict[str, tuple[tuple[float, float], ...]]:
         if implied is not None and walls and g.t_max > g.t_min:
             cut = shapely.intersection(plan.region, g.segment(g.t_min, g.t_max))
             parts = [p for p in getattr(cut, "geoms", [cut]) if p.geom_type == "LineString" and p.length > tol]
-            pieces = _merge([tuple(sorted(((np.asarray(p.coords) - g.origin) @ g.direction)[[0, -1]])) for p in parts],
-                            tol)
+            pieces = merge_intervals([tuple(sorted(((np.asarray(p.coords) - g.origin) @ g.direction)[[0, -1]]))
+                                      for p in parts], tol)
             spans += [(a, b) for a, b in pieces if any(w.t_from >= a - tol and w.t_to <= b + tol for w in walls)]
         if spans:
-            out[g.name] = _merge(spans, tol)
+            out[g.name] = tuple(merge_intervals(spans, tol))
     return out

@@ -34,7 +34,7 @@ import shapely
 from shapely.geometry import LineString
 
 from planshear.loads import ForceField
-from planshear.plan import GridLine, Plan
+from planshear.plan import GridLine, Plan, merge_intervals
 
 from .distribution import SpanLoad
 
@@ -339,17 +339,6 @@ def line_sides(plan: Plan, grid_line: GridLine, s_index: int, size: float
     left = side_intervals(plan, grid_line, s_index, -eps)
     right = side_intervals(plan, grid_line, s_index, eps)
     return left, right, merge_intervals(left + right + side_intervals(plan, grid_line, s_index, 0.0), 10 * eps)
-
-
-def merge_intervals(intervals: list[tuple[float, float]], gap: float) -> list[tuple[float, float]]:
-    """Union of intervals, joining those closer than ``gap``."""
-    merged: list[list[float]] = []
-    for t0, t1 in sorted(intervals):
-        if merged and t0 <= merged[-1][1] + gap:
-            merged[-1][1] = max(merged[-1][1], t1)
-        else:
-            merged.append([t0, t1])
-    return [(a, b) for a, b in merged]
 
 
 def _line_diagram(

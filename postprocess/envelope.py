@@ -40,9 +40,10 @@ import numpy as np
 
 from planshear.code.asce7_16 import collector_increase_applies_12_3_3_4
 from planshear.loads import LoadCase
+from planshear.plan import merge_intervals
 from planshear.results import MethodResult
 
-from .beam_analogy import line_sides, merge_intervals, running_axial_force
+from .beam_analogy import line_sides, running_axial_force
 from .classify import Classification
 from .transfer import line_collectors_with_transfer, transfer_peaks
 

@@ -31,6 +31,7 @@ from .model import (
     Transfer,
     Wall,
     Zone,
+    merge_intervals,
 )
 from .reader import TITLE_BLOCK_KEYS, load_plan, parse_plan
 from .stability import Stability, assess_stability, check_stability, rigid_stiffness_rows
@@ -69,6 +70,7 @@ __all__ = [
     "estimate_mesh",
     "expand_wall_types",
     "load_plan",
+    "merge_intervals",
     "parse_plan",
     "physical_memory",
     "rigid_stiffness_rows",

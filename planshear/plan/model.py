@@ -261,3 +261,16 @@ class Plan:
     def length_scale(self) -> float:
         """Metres per plan length unit."""
         return LENGTH_UNITS[self.length_unit]
+
+
+def merge_intervals(intervals, gap: float) -> list[tuple[float, float]]:
+    """Union of intervals (t0, t1) along a line, in order, joining those closer than
+    ``gap`` (same unit as t)."""
+    merged: list[list[float]] = []
+    for t0, t1 in sorted(intervals):
+        if merged and t0 <= merged[-1][1] + gap:
+            merged[-1][1] = max(merged[-1][1], t1)
+        else:
+            merged.append([t0, t1])
+    return [(a, b) for a, b in merged]
+
