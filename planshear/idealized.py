@@ -19,7 +19,7 @@ from .postprocess.beam_analogy import (
     load_along_span,
 )
 from .postprocess.deflection import span_deflections
-from .postprocess.transfer import transfer_diaphragms
+from .postprocess.transfer import line_collectors_with_transfer, transfer_diaphragms
 from .results import CaseResult, ChordResult, LineResult, MethodResult
 
 #: Force left at the end of a line piece, relative to the case's force, above which a
@@ -111,6 +111,10 @@ def _case_from_analogy(
         max_displacement=max_displacement,
         equilibrium_residual=max(residual, collector_residual / case.force),
         extra={**(extra or {}), **({"transfer": transfers} if transfers else {}), **({"notes": notes} if notes else {}),
+               # The member on each line a transfer region acts on: its whole collector force (own diagram,
+               # the region's share and strut), for the envelope, the checks and the report alike.
+               **({"collectors_with_transfer": line_collectors_with_transfer({"transfer": transfers}, lines)}
+                  if transfers else {}),
                # (axis, s m, V N, ℓ m) along each span direction, the main one first: the unit-shear
                # diagram V/ℓ of the report (main) and of the zones' design checks (both).
                "span_shear": tuple((a.axis, a.stations, a.shear, a.length_available) for a in (main, transverse)

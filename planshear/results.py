@@ -198,16 +198,11 @@ def case_to_json(case: CaseResult, units: OutputUnits) -> dict:
             ]
         elif key == "transfer":
             out[key] = [transfer_to_json(td, units) for td in value]
-            from .postprocess.transfer import (
-                line_collectors_with_transfer,  # postprocess imports this module
-            )
-
-            # The member on a line that a transfer region acts on: its own collector diagram plus
-            # the region's share and strut (what the envelope takes; the report draws this one).
-            out["collectors_with_transfer"] = {
+        elif key == "collectors_with_transfer":
+            out[key] = {
                 name: {"diagram": [[_r(units.length_out(t)), _r(units.force_out(n))] for t, n in zip(t_, n_, strict=True)],
                        "includes": list(parts)}
-                for name, (t_, n_, parts) in line_collectors_with_transfer(case.extra, case.lines).items()
+                for name, (t_, n_, parts) in value.items()
             }
         elif key == "span_shear":  # the main span's (s, V, ℓ) in m, N, m → stations, V, length present, V/ℓ
             _, s, shear, length = value[0]

@@ -40,7 +40,6 @@ from planshear.results import MethodResult, unit_shear_along
 
 from .envelope import Envelope, Governing, member_envelopes
 from .sections import _locate
-from .transfer import line_collectors_with_transfer
 
 __all__ = ["Check", "DesignChecks", "design_checks", "zone_regions", "zone_unit_shear", "splice_forces", "Splice"]
 
@@ -413,7 +412,7 @@ def splice_forces(plan: Plan, methods: dict[str, MethodResult], cases, envelope:
                 line = None if grid_line is None else result.lines.get(grid_line.name)
                 stations, collector = (None, None) if line is None else (line.stations, line.collector)
                 if grid_line is not None and not semi:  # transfer regions on the line are part of its member
-                    stations, collector, _ = line_collectors_with_transfer(result.extra, result.lines).get(
+                    stations, collector, _ = result.extra.get("collectors_with_transfer", {}).get(
                         grid_line.name, (stations, collector, ()))
                 if stations is not None and len(stations) and stations[0] - tol <= t <= stations[-1] + tol:
                     along = not semi or grid_line.parallel_to in (None, case.axis)

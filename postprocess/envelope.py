@@ -45,7 +45,7 @@ from planshear.results import MethodResult
 
 from .beam_analogy import line_sides, running_axial_force
 from .classify import Classification
-from .transfer import line_collectors_with_transfer, transfer_peaks
+from .transfer import transfer_peaks
 
 __all__ = ["Governing", "Envelope", "MemberName", "MemberLayout", "MemberEnvelope", "build_envelope", "compare_walls",
            "member_envelopes", "member_layout", "with_irregularity_increase"]
@@ -161,9 +161,10 @@ def build_envelope(
         slot[prefix + "compression"] = better(slot.get(prefix + "compression"), factor * bottom, assumption, case_name,
                                               -1.0, combination)
 
-    def collect(c: dict, values, peak: float, assumption: str, case_name: str, design: bool, omega: float,
-                fd: float) -> None:
+    def collect(c: dict, values, assumption: str, case_name: str, design: bool, omega: float, fd: float) -> None:
         """A collector diagram (N) of one case into its slots, with Ω0 (``omega``) and the combination factor."""
+        values = np.asarray(values)
+        peak = float(values[np.argmax(np.abs(values))]) if len(values) else 0.0  # as LineResult.peak
         c["information"] = better(c["information"], peak, assumption, case_name, factor=fd)
         if design:
             c["design"] = better(c["design"], peak, assumption, case_name, factor=fd)
@@ -189,8 +190,7 @@ def build_envelope(
             semirigid = assumption.startswith("semirigid") and layout is not None
             # Flexible, rigid: the collector of a line that a transfer region acts on carries the
             # region's share and the strut extending an offset chord too (same member, same case).
-            with_transfer = ({} if assumption.startswith("semirigid")
-                             else line_collectors_with_transfer(result.extra, result.lines))
+            with_transfer = result.extra.get("collectors_with_transfer", {})
             for name, (_, _, parts) in with_transfer.items():
                 slot = transfer_parts.setdefault(name, {"collector": [], "chord": []})["collector"]
                 slot += [p for p in parts if p not in slot]
@@ -202,10 +202,8 @@ def build_envelope(
                         slot += [key] if key not in slot else []
 
             for name in with_transfer.keys() - result.lines.keys():  # e.g. a strut on a line across the load
-                _, values, _ = with_transfer[name]
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
-                collect(c, values, float(values[np.argmax(np.abs(values))]) if len(values) else 0.0,
-                        assumption, case_name, design, omega, fd)
+                collect(c, with_transfer[name][1], assumption, case_name, design, omega, fd)
             for name, line in result.lines.items():
                 r = reactions.setdefault(name, {"design": None, "information": None})
                 c = collectors.setdefault(name, {"design": None, "with_overstrength": None, "information": None})
@@ -225,12 +223,8 @@ def build_envelope(
                                                             factor=fd)
                             extremes(c, combined, assumption, case_name, "with_overstrength_", 1.0, fd)
                     continue
-                if name in with_transfer:
-                    values = with_transfer[name][1]
-                    collect(c, values, float(values[np.argmax(np.abs(values))]) if len(values) else 0.0,
-                            assumption, case_name, design, omega, fd)
-                else:
-                    collect(c, line.collector, line.peak, assumption, case_name, design, omega, fd)
+                diagram = with_transfer[name][1] if name in with_transfer else line.collector
+                collect(c, diagram, assumption, case_name, design, omega, fd)
             # Transfer diaphragms (flexible, rigid): their collectors and chords are enveloped too.
             extra_collectors, extra_chords = transfer_peaks(result.extra)
             for name, peak in extra_collectors:
@@ -439,11 +433,14 @@ def member_layout(plan) -> MemberLayout:
             key = f"chord on {member.line}"
             chord_line[key], chord_axis[key] = member.line, line_axis.get(member.line)
             on_line.setdefault(member.line, []).append((key, member.t_from, member.t_to))
+    # The line's pieces with diaphragm on or beside it (shapely cuts: once per line).
+    sides = {g.name: tuple(line_sides(plan, g, 1 if g.parallel_to == "x" else 0, size)[2])
+             for g in plan.grid_lines if g.parallel_to is not None}
     members = []
     chord_part: dict[str, str] = {}
     for g in plan.grid_lines:
         chords = on_line.get(g.name, [])
-        pieces = _member_pieces(plan, g, chords, size, tol)
+        pieces = _member_pieces(plan, g, chords, sides.get(g.name, ()), tol)
         t_lo, t_hi = pieces[0][0], pieces[-1][1]
         chord_bays = None
         if chords:
@@ -470,24 +467,20 @@ def member_layout(plan) -> MemberLayout:
         g = plan.line(wall.line)
         t0, t1 = sorted(((wall.start - g.origin) @ g.direction, (wall.end - g.origin) @ g.direction))
         line_walls.setdefault(wall.line, []).append((wall.id, float(t0), float(t1), float(wall.direction @ g.direction)))
-    line_pieces = {}
-    for g in plan.grid_lines:
-        if g.name in line_walls and g.parallel_to is not None:
-            line_pieces[g.name] = tuple(line_sides(plan, g, 1 if g.parallel_to == "x" else 0, size)[2])
+    line_pieces = {name: pieces for name, pieces in sides.items() if name in line_walls}
     return MemberLayout(tuple(members), line_axis, chord_line, chord_axis,
                         {k: tuple(v) for k, v in line_walls.items()}, line_pieces, chord_part)
 
 
-def _member_pieces(plan, g, chords: list[tuple[str, float, float]], size: float, tol: float
-                   ) -> list[tuple[float, float]]:
+def _member_pieces(plan, g, chords: list[tuple[str, float, float]], sides: tuple[tuple[float, float], ...],
+                   tol: float) -> list[tuple[float, float]]:
     """The pieces (t0, t1 m, in order) of grid line ``g`` that a member on it occupies: where
-    the diaphragm is on or beside the line, its chords and any declared member on it, joined
-    where they touch. A skewed line (or one the outline only touches at a point) keeps its
-    whole extent over the diaphragm."""
+    the diaphragm is on or beside the line (``sides``, from :func:`line_sides`; none for a
+    skewed line), its chords and any declared member on it, joined where they touch. A line
+    with none of these keeps its whole extent over the diaphragm."""
     spans = [(min(t0, t1), max(t0, t1)) for _, t0, t1 in chords]
     spans += [(min(m.t_from, m.t_to), max(m.t_from, m.t_to)) for m in plan.members if m.line == g.name]
-    if g.parallel_to is not None:
-        spans += list(line_sides(plan, g, 1 if g.parallel_to == "x" else 0, size)[2])
+    spans += list(sides)
     pieces = merge_intervals(spans, tol)
     return pieces or [(g.t_min, g.t_max)]
 
