@@ -107,11 +107,18 @@ def _start_workers(batches: list[list[FigureSpec]], folder: Path) -> list:
     for k, batch in enumerate(batches):
         if not batch:
             continue
-        path = folder / f".batch-{k}.pickle"
-        path.write_bytes(pickle.dumps([(s.draw, s.kwargs, str(folder), s.name, s.svg) for s in batch]))
-        process = subprocess.Popen(_worker_command(str(path)), stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        path = _write_batch(batch, folder, k)
+        process = subprocess.Popen(_worker_command(str(path)), stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
+                                   stderr=subprocess.DEVNULL)
         started.append((process, path, batch))
     return started
+
+
+def _write_batch(batch: list[FigureSpec], folder: Path, k: int) -> Path:
+    """The pickled jobs of one worker's batch (plain data: figures.render's arguments)."""
+    path = folder / f".batch-{k}.pickle"
+    path.write_bytes(pickle.dumps([(s.draw, s.kwargs, str(folder), s.name, s.svg) for s in batch]))
+    return path
 
 
 #: Fewest figures drawn in worker processes (below this, starting the processes costs more).
@@ -161,8 +168,7 @@ class FigureWorkers:
             if not batch or not self._waiting:
                 continue
             process = self._waiting.pop(0)
-            path = folder / f".batch-{k}.pickle"
-            path.write_bytes(pickle.dumps([(s.draw, s.kwargs, str(folder), s.name, s.svg) for s in batch]))
+            path = _write_batch(batch, folder, k)
             try:
                 process.stdin.write(f"{path}\n".encode())
                 process.stdin.close()
