@@ -462,6 +462,11 @@ def _nil_line(name: str, slots: dict, with_walls: set[str]) -> bool:
             and all(g is None or abs(g["value"]) < 0.005 for g in values))
 
 
+def _chord_name(key: str, slots: dict) -> str:
+    """A chord in the terminal: its part ("line B, 3–4"), else its member, else its key."""
+    return slots.get("part") or slots.get("member") or key
+
+
 def _print_chords(doc: dict, envelope: dict, console) -> None:
     force = doc["units"]["force"]
     console.print(f"\nchord forces ({force}; load across the member)")
@@ -469,7 +474,7 @@ def _print_chords(doc: dict, envelope: dict, console) -> None:
     for name, slots in envelope.get("chords", {}).items():
         design = slots.get("design")
         if design:
-            rows.add_row(slots.get("part") or slots.get("member", name), force_text(design["value"], force),
+            rows.add_row(_chord_name(name, slots), force_text(design["value"], force),
                          sense(design, slots.get("tension"), slots.get("compression")), governs(design))
     console.print(rows)
 
@@ -551,8 +556,7 @@ def _print_walls_along_chords(doc: dict, console) -> None:
         rows = table(console, "chord", ("at", "right"), ("walls take", "right"), ("of M/d", "right"), "",
                      ("share", "right"), ("chord force", "right"), "", "case")
         for edge, (case_name, c) in edges.items():
-            named = (chords.get(edge) or {}).get("part") or (chords.get(edge) or {}).get("member") or edge
-            rows.add_row(named, f"{c['at']:.4g} {position}", force_text(c["walls_force"], force),
+            rows.add_row(_chord_name(edge, chords.get(edge) or {}), f"{c['at']:.4g} {position}", force_text(c["walls_force"], force),
                          force_text(c["M_over_d"], force), sense({"value": c["M_over_d"]}, None, None),
                          f"{100 * c['walls_share']:.0f} %", force_text(c["chord_force"], force),
                          sense({"value": c["chord_force"]}, None, None), case_name)
