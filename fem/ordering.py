@@ -114,41 +114,51 @@ def _quotient(matrix: sp.spmatrix, group: np.ndarray) -> sp.csr_matrix:
     return Q
 
 
-def _csr(r: np.ndarray, c: np.ndarray, k: int) -> sp.csr_matrix:
-    """A k × k graph from edges sorted by row (no sorting, no duplicate check: the edge
-    lists here are always filtered from a canonical matrix, so they stay canonical)."""
-    indptr = np.zeros(k + 1, dtype=np.int32)
-    np.cumsum(np.bincount(r, minlength=k), out=indptr[1:])
-    G = sp.csr_matrix((np.ones(c.size), c, indptr), shape=(k, k))
-    G.has_sorted_indices = True  # filtered from sorted rows: spare csgraph the checks
+def _graph(indptr: np.ndarray, indices: np.ndarray, ones: np.ndarray) -> sp.csr_matrix:
+    """A csgraph-ready k × k graph on views of our own arrays (int32 indices, float64 data
+    from one preallocated array of ones): csgraph then converts nothing. The edge lists
+    here are always filtered from a canonical matrix, so they stay canonical."""
+    k = indptr.size - 1
+    G = sp.csr_matrix((ones[:indices.size], indices, indptr), shape=(k, k), copy=False)
+    G.has_sorted_indices = True  # spare csgraph the checks
     G.has_canonical_format = True
     return G
 
 
-def _depths(G: sp.csr_matrix, starts: np.ndarray) -> np.ndarray:
+def _depths(indptr: np.ndarray, buf: np.ndarray, n_edges: int, ones: np.ndarray,
+            starts: np.ndarray) -> np.ndarray:
     """Breadth-first distance of every vertex from the start vertex of its component, all
-    components in one search: a virtual root (vertex k) points to every start, and the
-    depths follow from the predecessor tree by pointer doubling (log₂(depth) passes).
-    Vertices of components without a start get depth 0."""
-    k = G.shape[0]
-    indptr = np.append(G.indptr, G.indptr[-1] + starts.size).astype(np.int32)
-    indices = np.concatenate([G.indices, starts.astype(np.int32)])
-    R = sp.csr_matrix((np.ones(indices.size), indices, indptr), shape=(k + 1, k + 1))
-    _, pred = breadth_first_order(R, k, directed=True, return_predecessors=True)
-    anc = pred.astype(np.int64)
-    anc[k] = k
-    anc[anc < 0] = k
-    dist = np.ones(k + 1, dtype=np.int64)
-    dist[k] = 0
-    while np.any(anc != k):
-        dist = dist + dist[anc]
-        anc = anc[anc]
-    return dist[:k] - 1
+    components in one search: a virtual root (vertex k) points to every start; its edges
+    are written into ``buf`` after the graph's ``n_edges`` (no copy of the graph).
+
+    The search's visiting order has nondecreasing depth and its vertices' predecessors
+    appear in nondecreasing order, so the first vertex of depth d + 1 is the first whose
+    predecessor is not before the first vertex of depth d: one binary search per depth
+    (a loop over depths, never over vertices). Vertices of components without a start
+    get depth 0. Returns int32 depths (k,)."""
+    k = indptr.size - 1
+    s = starts.size
+    buf[n_edges:n_edges + s] = starts
+    root = np.empty(k + 2, dtype=np.int32)
+    root[:k + 1] = indptr
+    root[k + 1] = n_edges + s
+    order, pred = breadth_first_order(_graph(root, buf[:n_edges + s], ones), k, directed=True,
+                                      return_predecessors=True)
+    at = np.empty(k + 1, dtype=np.int32)
+    at[order] = np.arange(order.size, dtype=np.int32)
+    pred_at = at[pred[order[1:]]]  # nondecreasing (breadth-first queue)
+    bounds = [0, 1]  # the first position of depth 0 (the root), 1, ...
+    while bounds[-1] < order.size:
+        # an int32 key: another type would convert the whole array at every call
+        bounds.append(int(pred_at.searchsorted(np.int32(bounds[-1]))) + 1)
+    depth = np.ones(k + 1, dtype=np.int32)  # unreached: 1, so 0 below
+    depth[order] = np.repeat(np.arange(len(bounds) - 1, dtype=np.int32), np.diff(bounds))
+    return depth[:k] - 1  # the starts are one step below the root
 
 
 def _farthest(comp: np.ndarray, depth: np.ndarray, n_comp: int) -> tuple[np.ndarray, np.ndarray]:
     """Per component: its greatest depth (eccentricity of the start) and a vertex there."""
-    ecc = np.zeros(n_comp, dtype=np.int64)
+    ecc = np.zeros(n_comp, dtype=depth.dtype)  # one dtype: ufunc.at's fast path
     np.maximum.at(ecc, comp, depth)
     at_max = np.flatnonzero(depth == ecc[comp])
     far = np.empty(n_comp, dtype=np.int64)
@@ -156,26 +166,32 @@ def _farthest(comp: np.ndarray, depth: np.ndarray, n_comp: int) -> tuple[np.ndar
     return far, ecc
 
 
-def _dissect_level(G: sp.csr_matrix, comp: np.ndarray, n_comp: int, big: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """One dissection step for every component of G listed in ``big`` at once.
+def _dissect_level(indptr: np.ndarray, buf: np.ndarray, n_edges: int, ones: np.ndarray, comp: np.ndarray,
+                   n_comp: int, big: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """One dissection step for every component listed in ``big`` at once, of the graph
+    ``indptr``, ``buf[:n_edges]`` (``buf`` has room after the edges for the searches'
+    virtual root, ``ones`` at least as many entries as ``buf``).
 
     Returns (separator mask over the vertices, mask over ``big`` of the components that
     cannot be split by levels and become leaves)."""
     k = comp.size
-    first = np.empty(n_comp, dtype=np.int64)
-    first[comp[::-1]] = np.arange(k)[::-1]  # the first vertex of each component
-    depth = _depths(G, first[big])
+    first = np.empty(n_comp, dtype=np.int32)
+    first[comp[::-1]] = np.arange(k, dtype=np.int32)[::-1]  # the first vertex of each component
+    depth = _depths(indptr, buf, n_edges, ones, first[big])
     far, _ = _farthest(comp, depth, n_comp)
-    depth = _depths(G, far[big])  # the second sweep: from a pseudo-peripheral vertex
+    depth = _depths(indptr, buf, n_edges, ones, far[big])  # the second sweep: from a pseudo-peripheral vertex
     _, ecc = _farthest(comp, depth, n_comp)
     # Cutting at level ℓ separates the levels below from those above by the level-ℓ
     # vertices with a neighbour one level up. Per component choose the ℓ in 1..ecc−1 with
     # the least separator size / smaller side (a ratio cut: balance and a small separator
     # both count); histograms over (component, level) bins, each component's bins
     # contiguous, so every component is decided at once.
-    r = np.repeat(np.arange(k, dtype=np.int32), np.diff(G.indptr))
+    # A neighbour one level up: neighbours' depths differ by at most one, so it is the
+    # row's greatest neighbour depth exceeding its own (rows without edges: none).
     has_up = np.zeros(k, dtype=bool)
-    has_up[r[depth[G.indices] == depth[r] + 1]] = True
+    rows = np.flatnonzero(np.diff(indptr))
+    if rows.size:
+        has_up[rows] = np.maximum.reduceat(depth[buf[:n_edges]], indptr[rows]) > depth[rows]
     offset = np.zeros(n_comp + 1, dtype=np.int64)
     np.cumsum(ecc + 1, out=offset[1:])
     bins = offset[comp] + depth
@@ -228,10 +244,16 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
     bfs = breadth_first_order(R, m, directed=True, return_predecessors=False)[1:]
     Q = sp.csr_matrix(Q[bfs][:, bfs])
     Q.sort_indices()
-    # The graph of the vertices not yet ordered, as row-sorted edge lists in their own
-    # numbering (filtering keeps them sorted, so every level rebuilds it without sorting).
-    r = np.repeat(np.arange(m, dtype=np.int32), np.diff(Q.indptr))
-    c = Q.indices.astype(np.int32)
+    # The graph of the vertices not yet ordered in their own numbering: CSR arrays, int32,
+    # the column indices in ``buf`` with room after them for the breadth-first searches'
+    # virtual root; float64 ones shared as every graph's data (csgraph converts nothing).
+    # Filtering keeps the rows sorted, so every level rebuilds it without sorting.
+    indptr = Q.indptr.astype(np.int32)
+    n_edges = Q.indices.size
+    buf = np.empty(n_edges + m, dtype=np.int32)
+    buf[:n_edges] = Q.indices
+    ones = np.ones(buf.size)
+    del Q
     # The dissection tree: node 0 is a virtual root; every component met at some level is
     # a node (holding its separator, or all of it when it is a leaf), child of the node of
     # the component it was cut from.
@@ -244,7 +266,7 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
         k = active.size
         if k == 0:
             break
-        G = _csr(r, c, k)
+        G = _graph(indptr, buf[:n_edges], ones)
         n_comp, comp = connected_components(G, directed=True, connection="strong")
         size = np.bincount(comp, minlength=n_comp)
         nodes = n_nodes + np.arange(n_comp)
@@ -258,15 +280,24 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
         big = np.flatnonzero(~leaf_comp)
         sep = np.zeros(k, dtype=bool)
         if big.size:
-            sep, whole = _dissect_level(G, comp, n_comp, big)
+            sep, whole = _dissect_level(indptr, buf, n_edges, ones, comp, n_comp, big)
             leaf_comp[big[whole]] = True
         final = leaf_comp[comp] | sep
         node_of[active[final]] = nodes[comp[final]]
         parent_of[active[~final]] = nodes[comp[~final]]
         rest = ~final
-        keep = rest[r] & rest[c]
-        local = (np.cumsum(rest) - 1).astype(np.int32)
-        r, c = local[r[keep]], local[c[keep]]
+        if not rest.any():
+            break
+        # Keep the edges between remaining vertices: rows of final vertices lose all.
+        c = buf[:n_edges]
+        keep = np.repeat(rest, np.diff(indptr))
+        keep &= rest[c]
+        kept = np.zeros(n_edges + 1, dtype=np.int32)
+        np.cumsum(keep, out=kept[1:])
+        indptr = kept[indptr[np.append(np.flatnonzero(rest), k)]]
+        local = np.cumsum(rest, dtype=np.int32) - 1
+        n_edges = int(indptr[-1])
+        np.take(local, c[keep], out=buf[:n_edges])
         active = active[rest]
     # A postorder of the tree (children before parents, each subtree contiguous): the
     # reverse of a preorder. SuperLU in symmetric mode does not postorder the elimination
@@ -278,9 +309,22 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
         depth_first_order(tree, 0, directed=True, return_predecessors=False)
     node_rank = np.empty(n_nodes, dtype=np.int64)
     node_rank[pre[::-1]] = np.arange(n_nodes)
-    rank_bfs = np.empty(m, dtype=np.int64)
-    rank_bfs[np.lexsort((np.arange(m), node_rank[node_of]))] = np.arange(m)
-    rank = np.empty(m, dtype=np.int64)
-    rank[bfs] = rank_bfs  # back to the compressed vertices' own numbering
-    # Expand: the unknowns of a compressed vertex consecutively, in their own order.
-    return np.lexsort((np.arange(n), rank[group])).astype(np.int64)
+    # The compressed vertices in elimination order (by tree node; within one, in the
+    # breadth-first numbering), back in their own numbering.
+    vertices = bfs[np.argsort(node_rank[node_of], kind="stable")]
+    return _expand(vertices, group)
+
+
+def _expand(vertices: np.ndarray, group: np.ndarray) -> np.ndarray:
+    """The unknowns of the compressed ``vertices`` (an order of all groups), each group's
+    unknowns consecutively in their own order (a counting sort: no sort of n items
+    unless the groups are not numbered in order of their unknowns)."""
+    n = group.size
+    count = np.bincount(group, minlength=vertices.size)
+    start = np.zeros(count.size, dtype=np.int64)
+    np.cumsum(count[:-1], out=start[1:])
+    # The unknowns grouped by group, each group's in increasing order.
+    members = np.arange(n) if np.all(group[1:] >= group[:-1]) else np.argsort(group, kind="stable")
+    length = count[vertices]
+    out_start = np.cumsum(length) - length
+    return members[np.arange(n) + np.repeat(start[vertices] - out_start, length)]
