@@ -13,15 +13,19 @@ pseudo-peripheral vertex of ch. 4 by two breadth-first sweeps):
 
 1. Compress: the unknowns of one mesh node have identical rows (closed neighbourhoods);
    each group of identical rows becomes one vertex of a quotient graph, ordered as one.
-2. Level by level (a loop over dissection levels only, never over vertices): the connected
-   components of the vertices not yet ordered; each component no larger than the leaf size
-   is a leaf. For every larger component at once: a pseudo-peripheral vertex (two
-   breadth-first searches, all components in one call through a virtual root joined to
-   one vertex of each) and its level structure; cutting at level ℓ separates the levels
-   below from those above by the level-ℓ vertices with a neighbour in level ℓ + 1. George
-   cuts at the median level; we take the level with the least separator size / smaller
-   side (a ratio cut, which also looks at the separator's size: on planshear's 250k-DOF
-   rectangle it gave about 5 % less fill than the median level: nnz(L+U) 46.3M vs 48.7M).
+2. Level by level (loops over dissection levels, breadth-first depths and chunks of rows,
+   never over vertices): the connected components of the vertices not yet ordered; each
+   component no larger than the leaf size is a leaf. For every larger component at once: a
+   pseudo-peripheral vertex (two breadth-first searches, all components in one call
+   through a virtual root joined to one vertex of each) and its level structure; cutting
+   at level ℓ separates the levels below from those above by the level-ℓ vertices with a
+   neighbour in level ℓ + 1. George cuts at the median level; we take the level with the
+   least separator size / smaller side (a ratio cut, which also looks at the separator's
+   size: on planshear's 250k-DOF rectangle it gave about 5 % less fill than the median
+   level: nnz(L+U) 46.3M vs 48.7M). The components need no pass of their own: the first
+   search starts from one vertex of each side of the previous level's cuts (the side
+   below a cut is connected), and only the vertices it misses (pieces of a side above a
+   cut) are searched for components.
 3. The elimination order is a postorder of the dissection tree (each component's leaves and
    sub-separators, then its separator): SuperLU in symmetric mode does not postorder its
    elimination tree itself (SuperLU's sp_preorder.c: "In symmetric mode, do not do
