@@ -217,3 +217,27 @@ def test_quotient_of_unsymmetric_and_duplicate_patterns():
         Q = _quotient(M, group)
         assert Q.has_canonical_format
         assert (Q != expected).nnz == 0
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_postorder_matches_a_depth_first_search(seed):
+    """The tree's postorder (levels of nodes, parents one level up) is the reverse of
+    scipy's depth-first preorder (children in increasing number), on random trees with
+    nodes of many children and parents numbered out of order."""
+    from scipy.sparse.csgraph import depth_first_order
+
+    from planshear.fem.ordering import _postorder
+
+    rng = np.random.default_rng(seed)
+    levels = [np.zeros(1, dtype=np.int64)]
+    start, count = 0, 1
+    for _ in range(int(rng.integers(1, 7))):
+        levels.append(rng.integers(start, start + count, size=int(rng.integers(1, 60))))
+        start, count = start + count, levels[-1].size
+    rank = _postorder(levels)
+    n_nodes = sum(p.size for p in levels)
+    parent = np.concatenate(levels)
+    tree = sp.csr_matrix((np.ones(n_nodes - 1), (parent[1:], np.arange(1, n_nodes))), shape=(n_nodes, n_nodes))
+    pre = depth_first_order(tree, 0, directed=True, return_predecessors=False)
+    assert np.array_equal(rank[pre[::-1]], np.arange(n_nodes))
+    assert np.all(rank[1:] < rank[parent[1:]])  # children before their parents
