@@ -90,6 +90,14 @@ def compress(matrix: sp.spmatrix) -> np.ndarray:
     return rank[label]
 
 
+def _first_of(labels: np.ndarray, n_labels: int, dtype) -> np.ndarray:
+    """The first position of every label 0..n_labels−1 in ``labels`` (each label present):
+    written from the back, so the earliest position is the one that stays."""
+    first = np.empty(n_labels, dtype=dtype)
+    first[labels[::-1]] = np.arange(labels.size, dtype=dtype)[::-1]
+    return first
+
+
 def _row_sums(indptr: np.ndarray, indices: np.ndarray, w: np.ndarray, rows_per_chunk: int = 4096) -> np.ndarray:
     """``w``-weighted sums over every row's stored columns (w: (n, j); sums wrap around in
     unsigned arithmetic); rows without entries: 0. In chunks of rows, so that the gathered
@@ -122,8 +130,7 @@ def _quotient(matrix: sp.spmatrix, group: np.ndarray) -> sp.csr_matrix:
         A.sum_duplicates()
     n = group.size
     m = int(group.max()) + 1
-    rep = np.empty(m, dtype=np.int64)
-    rep[group[::-1]] = np.arange(n)[::-1]  # the first row of each group
+    rep = _first_of(group, m, np.int64)  # the first row of each group
     col_group = np.full(n, -1, dtype=np.int32)  # representative columns: their group
     col_group[rep] = np.arange(m, dtype=np.int32)
     # The representative rows' entries, gathered row after row.
@@ -207,8 +214,7 @@ def _components(indptr: np.ndarray, buf: np.ndarray, n_edges: int, ones: np.ndar
     first vertex (as scipy's connected_components numbers them). Returns (comp, n_comp,
     depth)."""
     k = side.size
-    first = np.empty(n_side, dtype=np.int32)
-    first[side[::-1]] = np.arange(k, dtype=np.int32)[::-1]
+    first = _first_of(side, n_side, np.int32)
     depth = _depths(indptr, buf, n_edges, ones, first)
     comp = side
     lost = np.flatnonzero(depth < 0)
@@ -228,14 +234,12 @@ def _components(indptr: np.ndarray, buf: np.ndarray, n_edges: int, ones: np.ndar
         sub_ones = ones if ones.size >= sub_buf.size else np.ones(sub_buf.size)
         n_sub, sub_comp = connected_components(_graph(sub_ptr, sub_buf[:sub_edges], sub_ones), directed=True,
                                                connection="strong")
-        sub_first = np.empty(n_sub, dtype=np.int32)
-        sub_first[sub_comp[::-1]] = np.arange(lost.size, dtype=np.int32)[::-1]
+        sub_first = _first_of(sub_comp, n_sub, np.int32)
         depth[lost] = _depths(sub_ptr, sub_buf, sub_edges, sub_ones, sub_first)
         comp[lost] = n_side + sub_comp
         n_comp = n_side + n_sub
     # Number the components by their first vertex.
-    first = np.empty(n_comp, dtype=np.int32)
-    first[comp[::-1]] = np.arange(k, dtype=np.int32)[::-1]
+    first = _first_of(comp, n_comp, np.int32)
     rank = np.empty(n_comp, dtype=np.int32)
     rank[np.argsort(first)] = np.arange(n_comp, dtype=np.int32)
     return rank[comp], n_comp, depth
@@ -353,8 +357,7 @@ def nested_dissection(matrix: sp.spmatrix, leaf_size: int = LEAF_SIZE) -> np.nda
     n_side = 1
     if bfs.size < m:
         n_side, comp = connected_components(Q, directed=True, connection="strong")
-        first = np.empty(n_side, dtype=np.int64)
-        first[comp[::-1]] = np.arange(m)[::-1]  # the first vertex of each component
+        first = _first_of(comp, n_side, np.int64)  # the first vertex of each component
         root = np.append(Q.indptr, Q.indptr[-1] + n_side).astype(np.int32)
         R = sp.csr_matrix((np.ones(Q.indices.size + n_side), np.concatenate([Q.indices, first.astype(Q.indices.dtype)]),
                            root), shape=(m + 1, m + 1))
