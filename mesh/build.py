@@ -25,10 +25,10 @@ from .model import ELEMENT_NODES, LineMesh, Mesh, MeshError, check_mesh
 
 __all__ = ["build_mesh"]
 
-#: gmsh element type numbers.
-GMSH_TYPES = {"tri3": 2, "tri6": 9, "quad4": 3, "quad8": 16, "quad9": 10}
-GMSH_LINE = {2: 1, 3: 8}
-#: The first-order element gmsh makes for each element type, and its corner count.
+#: gmsh element type numbers of the first-order elements gmsh makes (line: 2-node).
+GMSH_TYPES = {"tri3": 2, "quad4": 3}
+GMSH_LINE = 1
+#: The first-order element gmsh makes for each element type (elevate() adds the rest).
 CORNER_TYPES = {"tri3": "tri3", "tri6": "tri3", "quad4": "quad4", "quad8": "quad4", "quad9": "quad4"}
 
 
@@ -120,7 +120,7 @@ def build_mesh(plan: Plan, size: float | None = None, order: int | None = None, 
         for _, tag in gmsh.model.getEntities(1):
             types, _, conn = gmsh.model.mesh.getElements(1, tag)
             for gtype, nodes_of in zip(types, conn, strict=True):
-                if gtype == GMSH_LINE[2]:
+                if gtype == GMSH_LINE:
                     edge_blocks.append(index_of[nodes_of.astype(np.int64)].reshape(-1, 2))
     finally:
         gmsh.finalize()
@@ -271,11 +271,12 @@ def elevate(nodes: np.ndarray, elements: np.ndarray, edges: np.ndarray,
     key = low * len(nodes) + high
     _, first, inverse = np.unique(key, return_index=True, return_inverse=True)
     # Number the mid-side nodes by first appearance (elements first), not by key.
+    by_appearance = np.argsort(first, kind="stable")
     rank = np.empty(len(first), dtype=np.int64)
-    rank[np.argsort(first, kind="stable")] = np.arange(len(first))
+    rank[by_appearance] = np.arange(len(first))
     middle = rank[inverse.reshape(-1)]
-    ends = np.argsort(rank)
-    middle_xy = 0.5 * (nodes[low[first[ends]]] + nodes[high[first[ends]]])
+    at = first[by_appearance]  # the first pair of each new node, in new-node order
+    middle_xy = 0.5 * (nodes[low[at]] + nodes[high[at]])
     new_nodes = [nodes, middle_xy]
     new_elements = [elements, len(nodes) + middle[: sides.shape[0]].reshape(len(elements), corners)]
     if element_type == "quad9":
